@@ -1,0 +1,560 @@
+//! Campaign workbooks (xlsx, xlsm, xls, ods through calamine; csv and parquet through polars)
+//! into typed observations, with every input row accounted for.
+//!
+//! Entry point: [`read_inputs`]. The result, [`Ingested`], holds the accepted rows as a
+//! polars frame of canonical columns (aligned with their origins, warnings and resolved
+//! physics observations), the rejected rows with their reasons and cells, the column
+//! mapping that was used and the assumptions that applied.
+//!
+//! # Layout
+//! The header row is the row (among the first 60) that names the most known quantities,
+//! so title and note rows above it are skipped; a row of units right under it is recognised.
+//! Fully empty rows are skipped; rows after the last one holding a measurement are notes
+//! (said in [`Ingested::warnings`], not counted). Headers are matched case- and
+//! separator-insensitively, with the wavelength read from them (`aod_500`, `AOD 440 nm`,
+//! `SSA(675)`, `asymmetry 870nm`).
+//!
+//! # Required and optional quantities
+//! Required: time, AOD, SSA, g, and a location (latitude and longitude in the row, or a site
+//! column whose sites the site sheet or the job file locates). The Ångström exponent comes from
+//! an `angstrom` column; else it is fitted to AOD at two or more wavelengths
+//! ([`fit_angstrom`]); else the job default (`defaults.angstrom`) is used and recorded as an
+//! assumption. With AOD at several wavelengths, the reference is the one nearest 550 nm.
+//! Optional values come from the row, else the site, else the job defaults, else the built-in
+//! defaults; every non-row value is an [`Assumption`].
+//!
+//! # Canonical frame columns
+//! `file`, `sheet`, `row` (origin), `site`, `time_utc` (datetime, ms, UTC), `latitude_deg`,
+//! `longitude_deg` (east, −180–180), `altitude_m`, `pressure_hpa` (null: from altitude),
+//! `aod`, `aod_wavelength_nm`, `angstrom`, `aod_at_550`, `ssa_at_550`, `asymmetry_at_550`
+//! (the spectral model evaluated at 550 nm), `surface` (`land`/`ocean`), `albedo` (null for
+//! ocean), `ozone_du`, `water_cm`, `layer_base_km`, `layer_top_km`, `n_warnings`, and the
+//! values as measured: `aod_<λ>nm`, `ssa_<λ>nm`, `asymmetry_<λ>nm` (null where a row or file
+//! has none).
+
+mod cells;
+mod detect;
+mod read;
+mod resolve;
+mod sources;
+mod time;
+mod types;
+mod validate;
+
+use std::collections::BTreeMap;
+use std::path::Path;
+
+use polars::prelude::*;
+
+pub use resolve::{fit_angstrom, interpolate_ln_wavelength};
+pub use types::*;
+
+use cells::FillValues;
+use read::{Rows, SheetContext, place};
+use resolve::SiteTable;
+use sources::FileKind;
+
+/// Wavelength as used in names: `500`, `532.5`.
+pub(crate) fn format_wavelength(w: f64) -> String {
+    cells::format_number((w * 10.0).round() / 10.0)
+}
+
+/// Read every input of `spec`.
+///
+/// Files are read in order; for each the data sheet (the one `spec.sheet` names, else the
+/// first whose header names AOD or SSA) and the site sheet (`spec.site_sheet`, else another
+/// sheet whose header names sites and their metadata).
+///
+/// Errors: [`IngestError::Unreadable`] for a file that cannot be opened (missing, empty,
+/// encrypted, truncated, foreign format); [`IngestError::Layout`] when no header is found, a
+/// required column is missing, the job file's mapping names no column, or the site table
+/// holds a bad value. Nothing is returned in part.
+pub fn read_inputs(spec: &InputSpec) -> Result<Ingested, IngestError> {
+    if spec.paths.is_empty() {
+        return Err(IngestError::Layout {
+            path: String::new(),
+            message: "no input file given: expected a workbook (xlsx, xlsm, xls, ods), csv or parquet file".into(),
+        });
+    }
+    let fill = FillValues::new(&spec.fill_values);
+    let mut rows = Rows::default();
+    let mut out = Ingested::default();
+    for path in &spec.paths {
+        read_file(path, spec, &fill, &mut rows, &mut out).map_err(without_repeated_path)?;
+    }
+    finish(rows, out)
+}
+
+fn read_file(
+    path: &Path,
+    spec: &InputSpec,
+    fill: &FillValues,
+    rows: &mut Rows,
+    out: &mut Ingested,
+) -> Result<(), IngestError> {
+    let file = path.display().to_string();
+    let kind = sources::file_kind(path)?;
+    let (sha256, head) = sources::hash_file(path)?;
+    let mut sheets_read = Vec::new();
+    match kind {
+        FileKind::Workbook => {
+            let mut book = sources::open_workbook(path, &head)?;
+            let mut grids: Vec<Option<cells::Grid>> = vec![None; book.names.len()];
+            let names = book.names.clone();
+            // Data sheet.
+            let data_idx = match &spec.sheet {
+                Some(s) => names.iter().position(|n| n == s || n.eq_ignore_ascii_case(s)).ok_or_else(|| {
+                    IngestError::Layout {
+                        path: file.clone(),
+                        message: format!(
+                            "{file}: the job file names sheet \"{s}\", but the workbook's sheets are {}",
+                            quoted(&names)
+                        ),
+                    }
+                })?,
+                None => {
+                    let mut found = None;
+                    for (i, n) in names.iter().enumerate() {
+                        let g = book.load(n)?;
+                        let hit = detect::find_header_row(&g, true).is_some();
+                        grids[i] = Some(g);
+                        if hit {
+                            found = Some(i);
+                            break;
+                        }
+                    }
+                    match found {
+                        Some(i) => i,
+                        None if names.is_empty() => {
+                            return Err(IngestError::Layout { path: file.clone(), message: format!("{file}: the workbook has no sheets") });
+                        }
+                        // Let the layout step explain what the first sheet lacks.
+                        None => 0,
+                    }
+                }
+            };
+            let data_name = names[data_idx].clone();
+            let data_grid = match grids[data_idx].take() {
+                Some(g) => g,
+                None => book.load(&data_name)?,
+            };
+            let layout = read::data_layout(&data_grid, spec, &file, &data_name)?;
+            // Site sheet.
+            let mut sheet_sites = Vec::new();
+            let site_idx = match &spec.site_sheet {
+                Some(s) => Some(names.iter().position(|n| n == s || n.eq_ignore_ascii_case(s)).ok_or_else(|| IngestError::Layout {
+                    path: file.clone(),
+                    message: format!("{file}: the job file names site sheet \"{s}\", but the workbook's sheets are {}", quoted(&names)),
+                })?),
+                None => {
+                    let mut found = None;
+                    for (i, n) in names.iter().enumerate() {
+                        if i == data_idx {
+                            continue;
+                        }
+                        if grids[i].is_none() {
+                            grids[i] = Some(book.load(n)?);
+                        }
+                        if grids[i].as_ref().and_then(|g| detect::find_header_row(g, false)).is_some() {
+                            found = Some(i);
+                            break;
+                        }
+                    }
+                    found
+                }
+            };
+            if let Some(i) = site_idx {
+                let g = match grids[i].take() {
+                    Some(g) => g,
+                    None => book.load(&names[i])?,
+                };
+                let header = detect::find_header_row(&g, false).ok_or_else(|| IngestError::Layout {
+                    path: file.clone(),
+                    message: format!(
+                        "{}: no header naming sites found: expected a row such as site, latitude, longitude, altitude, albedo, surface, utc_offset",
+                        place(&file, &names[i])
+                    ),
+                })?;
+                sheet_sites = read::read_site_sheet(&g, header, fill, &file, &names[i])?;
+                sheets_read.push(names[i].clone());
+            }
+            let sites = SiteTable::merge(&sheet_sites, &spec.sites);
+            read::require_columns(&layout, &data_grid, &file, &data_name, &sites)?;
+            sheets_read.insert(0, data_name.clone());
+            let ctx = SheetContext {
+                file: &file,
+                sheet: &data_name,
+                grid: &data_grid,
+                layout: &layout,
+                is_1904: book.is_1904,
+                fill,
+                sites: &sites,
+                spec,
+            };
+            finish_sheet(&ctx, rows, out);
+        }
+        FileKind::Csv | FileKind::Parquet => {
+            let grid = if kind == FileKind::Csv {
+                sources::read_csv(path, spec.header_row)?
+            } else {
+                sources::read_parquet(path)?
+            };
+            // The header is row 0 of a frame grid; the job file's header row applied already.
+            let spec_here = InputSpec {
+                header_row: Some(grid.row_number(0)),
+                ..spec.clone()
+            };
+            let layout = read::data_layout(&grid, &spec_here, &file, "")?;
+            let sites = SiteTable::merge(&[], &spec.sites);
+            read::require_columns(&layout, &grid, &file, "", &sites)?;
+            let ctx = SheetContext {
+                file: &file,
+                sheet: "",
+                grid: &grid,
+                layout: &layout,
+                is_1904: false,
+                fill,
+                sites: &sites,
+                spec,
+            };
+            finish_sheet(&ctx, rows, out);
+        }
+    }
+    out.files.push(InputFile {
+        path: file,
+        sha256,
+        sheets: sheets_read,
+    });
+    Ok(())
+}
+
+fn finish_sheet(ctx: &SheetContext<'_>, rows: &mut Rows, out: &mut Ingested) {
+    out.warnings.extend(ctx.layout.warnings.iter().cloned());
+    out.mapping
+        .extend(ctx.layout.mapped_columns(ctx.file, ctx.sheet));
+    read::read_rows(ctx, rows);
+}
+
+/// Layout messages are written with their place first (`campaign.xlsx, sheet "x": ...`); the
+/// error's own display already starts with the path, so say it once.
+fn without_repeated_path(e: IngestError) -> IngestError {
+    match e {
+        IngestError::Layout { path, message } => {
+            let message = match message.strip_prefix(path.as_str()) {
+                Some(rest) if !path.is_empty() => {
+                    rest.trim_start_matches([',', ':']).trim_start().to_string()
+                }
+                _ => message,
+            };
+            IngestError::Layout { path, message }
+        }
+        other => other,
+    }
+}
+
+fn quoted(names: &[String]) -> String {
+    names
+        .iter()
+        .map(|n| format!("\"{n}\""))
+        .collect::<Vec<_>>()
+        .join(", ")
+}
+
+fn finish(rows: Rows, mut out: Ingested) -> Result<Ingested, IngestError> {
+    let Rows {
+        accepted,
+        rejected,
+        counts,
+        warnings,
+        ..
+    } = rows;
+    out.warnings.extend(warnings);
+    out.rejected = rejected;
+    out.counts = counts;
+    let (assumptions, frame) =
+        rayon::join(|| tally_assumptions(&accepted), || build_frame(&accepted));
+    out.assumptions = assumptions;
+    out.frame = frame.map_err(|e| IngestError::Layout {
+        path: String::new(),
+        message: format!("cannot build the table of accepted rows: {e}"),
+    })?;
+    out.sites.reserve(accepted.len());
+    out.origins.reserve(accepted.len());
+    out.observations.reserve(accepted.len());
+    out.row_warnings.reserve(accepted.len());
+    for a in accepted {
+        out.sites.push(a.site);
+        out.origins.push(a.origin);
+        out.observations.push(a.observation);
+        out.row_warnings.push(a.warnings);
+    }
+    Ok(out)
+}
+
+/// Assumptions, tallied over computed rows, spelled out once, in a fixed order.
+fn tally_assumptions(accepted: &[read::Accepted]) -> Vec<Assumption> {
+    let mut tally: std::collections::HashMap<
+        (&'static str, &read::Val, ValueSource),
+        usize,
+        resolve::FxBuild,
+    > = Default::default();
+    for a in accepted {
+        for (k, t) in a.assumptions.iter().enumerate() {
+            if a.assumptions[..k].contains(t) {
+                continue;
+            }
+            *tally.entry((t.0, &t.1, t.2)).or_insert(0) += 1;
+        }
+    }
+    let mut assumptions: Vec<Assumption> = tally
+        .into_iter()
+        .map(|((quantity, value, source), rows)| Assumption {
+            quantity: quantity.to_string(),
+            value: value.text(),
+            source,
+            rows,
+        })
+        .collect();
+    assumptions.sort_by(|a, b| {
+        (&a.quantity, &a.value, a.source as u8).cmp(&(&b.quantity, &b.value, b.source as u8))
+    });
+    assumptions
+}
+
+type ColumnBuilder<'a> = Box<dyn Fn() -> PolarsResult<Column> + Send + Sync + 'a>;
+
+fn build_frame(rows: &[read::Accepted]) -> PolarsResult<DataFrame> {
+    use rayon::prelude::*;
+    let n = rows.len();
+    fn num<'a>(
+        rows: &'a [read::Accepted],
+        name: &'static str,
+        g: fn(&read::Accepted) -> f64,
+    ) -> ColumnBuilder<'a> {
+        Box::new(move || {
+            Ok(Column::new(
+                name.into(),
+                rows.iter().map(g).collect::<Vec<f64>>(),
+            ))
+        })
+    }
+    fn other(g: ColumnBuilder<'_>) -> ColumnBuilder<'_> {
+        g
+    }
+    // Columns are built in parallel, each from all rows.
+    let builders: Vec<ColumnBuilder<'_>> = vec![
+        other(Box::new(|| {
+            Ok(text_column(
+                "file",
+                rows.iter().map(|r| r.origin.file.as_str()),
+                n,
+            ))
+        })),
+        other(Box::new(|| {
+            Ok(text_column(
+                "sheet",
+                rows.iter().map(|r| r.origin.sheet.as_str()),
+                n,
+            ))
+        })),
+        other(Box::new(|| {
+            Ok(Column::new(
+                "row".into(),
+                rows.iter().map(|r| r.origin.row).collect::<Vec<u32>>(),
+            ))
+        })),
+        other(Box::new(|| {
+            Ok(Column::new(
+                "site".into(),
+                rows.iter().map(|r| r.site.as_str()).collect::<Vec<_>>(),
+            ))
+        })),
+        other(Box::new(|| {
+            Column::new(
+                "time_utc".into(),
+                rows.iter()
+                    .map(|r| r.observation.time_utc.timestamp_millis())
+                    .collect::<Vec<i64>>(),
+            )
+            .cast(&DataType::Datetime(TimeUnit::Milliseconds, None))
+        })),
+        num(rows, "latitude_deg", |r| r.observation.latitude_deg),
+        num(rows, "longitude_deg", |r| r.observation.longitude_deg),
+        num(rows, "altitude_m", |r| r.observation.altitude_m),
+        other(Box::new(|| {
+            Ok(Column::new(
+                "pressure_hpa".into(),
+                rows.iter()
+                    .map(|r| r.observation.pressure_hpa)
+                    .collect::<Vec<Option<f64>>>(),
+            ))
+        })),
+        num(rows, "aod", |r| r.observation.aod),
+        num(rows, "aod_wavelength_nm", |r| {
+            r.observation.aod_wavelength_nm
+        }),
+        num(rows, "angstrom", |r| r.observation.angstrom),
+        num(rows, "aod_at_550", |r| {
+            let o = &r.observation;
+            crate::physics::aerosol::aod_at_wavelength(
+                o.aod,
+                o.aod_wavelength_nm,
+                o.angstrom,
+                550.0,
+            )
+        }),
+        num(rows, "ssa_at_550", |r| at_550(&r.observation.ssa)),
+        num(rows, "asymmetry_at_550", |r| {
+            at_550(&r.observation.asymmetry)
+        }),
+        other(Box::new(|| {
+            Ok(Column::new(
+                "surface".into(),
+                rows.iter()
+                    .map(|r| read::surface_name(r.surface))
+                    .collect::<Vec<_>>(),
+            ))
+        })),
+        other(Box::new(|| {
+            Ok(Column::new(
+                "albedo".into(),
+                rows.iter().map(|r| r.albedo).collect::<Vec<Option<f64>>>(),
+            ))
+        })),
+        num(rows, "ozone_du", |r| r.observation.ozone_du),
+        num(rows, "water_cm", |r| r.observation.water_cm),
+        num(rows, "layer_base_km", |r| r.observation.layer.base_km),
+        num(rows, "layer_top_km", |r| r.observation.layer.top_km),
+        other(Box::new(|| {
+            Ok(Column::new(
+                "n_warnings".into(),
+                rows.iter()
+                    .map(|r| r.warnings.len() as u32)
+                    .collect::<Vec<u32>>(),
+            ))
+        })),
+    ];
+    let (cols, spectral) = rayon::join(
+        || {
+            builders
+                .par_iter()
+                .map(|b| b())
+                .collect::<PolarsResult<Vec<Column>>>()
+        },
+        || spectral_columns(rows),
+    );
+    let mut cols = cols?;
+    cols.extend(spectral);
+    DataFrame::new_infer_height(cols)
+}
+
+/// The values as measured: one column per quantity and wavelength.
+fn spectral_columns(rows: &[read::Accepted]) -> Vec<Column> {
+    let n = rows.len();
+    let mut cols = Vec::new();
+    // Measured spectral values, one column per quantity and wavelength.
+    let mut spectral: BTreeMap<(u8, i64), Vec<Option<f64>>> = BTreeMap::new();
+    for (i, r) in rows.iter().enumerate() {
+        let o = &r.observation;
+        let measured = r.aod_measured.iter().map(|&(w, v)| (0u8, w, v));
+        let ssa = o.ssa.iter().map(|s| (1u8, s.wavelength_nm, s.value));
+        let g = o.asymmetry.iter().map(|s| (2u8, s.wavelength_nm, s.value));
+        for (q, w, v) in measured.chain(ssa).chain(g) {
+            let col = spectral
+                .entry((q, (w * 10.0).round() as i64))
+                .or_insert_with(|| vec![None; n]);
+            col[i] = Some(v);
+        }
+    }
+    for ((q, w10), values) in spectral {
+        let name = format!(
+            "{}_{}nm",
+            ["aod", "ssa", "asymmetry"][q as usize],
+            format_wavelength(w10 as f64 / 10.0)
+        );
+        cols.push(Column::new(name.into(), values));
+    }
+    cols
+}
+
+fn at_550(values: &[crate::physics::SpectralValue]) -> f64 {
+    let mut pts = [(0.0, 0.0); 16];
+    if values.len() > pts.len() {
+        let v: Vec<(f64, f64)> = values.iter().map(|s| (s.wavelength_nm, s.value)).collect();
+        return interpolate_ln_wavelength(&v, 550.0);
+    }
+    for (p, s) in pts.iter_mut().zip(values) {
+        *p = (s.wavelength_nm, s.value);
+    }
+    interpolate_ln_wavelength(&pts[..values.len()], 550.0)
+}
+
+/// A text column; one repeated value (one file, one sheet) is stored once.
+fn text_column<'a>(name: &str, values: impl Iterator<Item = &'a str> + Clone, n: usize) -> Column {
+    let first = values.clone().next();
+    match first {
+        Some(f) if values.clone().all(|v| v == f) => Column::new_scalar(
+            name.into(),
+            Scalar::new(DataType::String, AnyValue::StringOwned(f.into())),
+            n,
+        ),
+        _ => Column::new(name.into(), values.collect::<Vec<_>>()),
+    }
+}
+
+/// A text summary for the command line: files, mapping (header text and column letter of
+/// each quantity), row counts, assumptions and warnings.
+pub fn mapping_summary(ing: &Ingested) -> String {
+    let mut s = String::new();
+    for f in &ing.files {
+        s.push_str(&format!(
+            "input {} (sha256 {})\n",
+            f.path,
+            &f.sha256[..f.sha256.len().min(12)]
+        ));
+        for sheet in &f.sheets {
+            let cols: Vec<&MappedColumn> = ing
+                .mapping
+                .iter()
+                .filter(|m| m.file == f.path && &m.sheet == sheet)
+                .collect();
+            if cols.is_empty() {
+                s.push_str(&format!("  sheet \"{sheet}\": site table\n"));
+                continue;
+            }
+            s.push_str(&format!("  sheet \"{sheet}\":\n"));
+            for m in cols {
+                s.push_str(&format!("    {m}\n"));
+            }
+        }
+        if f.sheets.is_empty() {
+            for m in ing.mapping.iter().filter(|m| m.file == f.path) {
+                s.push_str(&format!("    {m}\n"));
+            }
+        }
+    }
+    let c = ing.counts;
+    s.push_str(&format!(
+        "rows: {} read = {} computed + {} rejected + {} outside the period\n",
+        c.read, c.computed, c.rejected, c.outside_period
+    ));
+    if !ing.assumptions.is_empty() {
+        s.push_str("assumed:\n");
+        for a in &ing.assumptions {
+            let src = match a.source {
+                ValueSource::Workbook => "workbook",
+                ValueSource::SiteTable => "site table",
+                ValueSource::JobFile => "job file",
+                ValueSource::BuiltIn => "built-in",
+            };
+            s.push_str(&format!(
+                "  {} = {} ({src}; {} rows)\n",
+                a.quantity, a.value, a.rows
+            ));
+        }
+    }
+    for w in &ing.warnings {
+        s.push_str(&format!("warning: {w}\n"));
+    }
+    s
+}

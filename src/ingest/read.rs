@@ -1,0 +1,1314 @@
+//! One sheet (or csv/parquet file) into accepted and rejected rows: the column layout, then
+//! each row read, checked and resolved into an [`Observation`].
+
+use std::collections::HashMap;
+use std::sync::Arc;
+
+use chrono::{DateTime, TimeDelta, Utc};
+
+use super::cells::{
+    Cell, FillValues, Grid, NumberRead, column_index, column_letter, format_number, read_number,
+};
+use super::detect::{self, Kind, closest_header, parse_header};
+use super::resolve::{FxBuild, SiteTable, Sourced, default_source, fit_angstrom, site_key};
+use super::time::{
+    ParsedTime, TimeRead, combine, parse_offset_hours, read_date, read_time, read_time_of_day,
+};
+use super::types::*;
+use super::validate::{Check, check};
+use crate::physics::{AerosolLayer, Observation, SpectralValue, Surface};
+
+/// Wavelength assumed for a spectral column whose header names none [nm].
+pub(crate) const DEFAULT_WAVELENGTH_NM: f64 = 550.0;
+
+/// One mapped column of a sheet.
+#[derive(Debug, Clone)]
+pub(crate) struct Mapped {
+    pub col: usize,
+    pub kind: Kind,
+    pub wavelength_nm: Option<f64>,
+    pub header: String,
+    pub letter: String,
+    pub unit: String,
+    pub how: &'static str,
+    /// Factor to canonical units (e.g. 0.1 for precipitable water in mm).
+    pub scale: f64,
+    /// For time columns: offset stated by the header or units row [h].
+    pub stated_offset_hours: Option<f64>,
+}
+
+impl Mapped {
+    pub(crate) fn name(&self) -> String {
+        match (self.kind.spectral(), self.wavelength_nm) {
+            (true, Some(w)) => format!("{}_{}", self.kind.name(), super::format_wavelength(w)),
+            _ => self.kind.name().to_string(),
+        }
+    }
+
+    fn wavelength(&self) -> f64 {
+        self.wavelength_nm.unwrap_or(DEFAULT_WAVELENGTH_NM)
+    }
+}
+
+/// How a sheet is laid out.
+#[derive(Debug, Clone)]
+pub(crate) struct Layout {
+    pub header_row: usize,
+    pub units_row: Option<usize>,
+    pub columns: Vec<Mapped>,
+    pub warnings: Vec<String>,
+    /// A date column and a time-of-day column.
+    pub split_date_time: bool,
+}
+
+impl Layout {
+    pub(crate) fn has(&self, kind: Kind) -> bool {
+        self.columns.iter().any(|m| m.kind == kind)
+    }
+
+    pub(crate) fn data_start(&self) -> usize {
+        self.units_row
+            .map_or(self.header_row, |u| u.max(self.header_row))
+            + 1
+    }
+
+    /// The mapping as recorded in [`Ingested::mapping`].
+    pub(crate) fn mapped_columns(&self, file: &str, sheet: &str) -> Vec<MappedColumn> {
+        self.columns
+            .iter()
+            .map(|m| MappedColumn {
+                file: file.to_string(),
+                sheet: sheet.to_string(),
+                quantity: m.kind.name().to_string(),
+                wavelength_nm: if m.kind.spectral() {
+                    Some(m.wavelength())
+                } else {
+                    None
+                },
+                header: m.header.clone(),
+                letter: m.letter.clone(),
+                unit: m.unit.clone(),
+                how: m.how.to_string(),
+            })
+            .collect()
+    }
+}
+
+/// Where a sheet is, for messages: `campaign.xlsx, sheet "optics"`.
+pub(crate) fn place(file: &str, sheet: &str) -> String {
+    if sheet.is_empty() {
+        file.to_string()
+    } else {
+        format!("{file}, sheet \"{sheet}\"")
+    }
+}
+
+fn header_list(grid: &Grid, r: usize) -> Vec<(String, String)> {
+    (0..grid.width())
+        .filter_map(|c| {
+            grid.cell(r, c)
+                .text()
+                .map(|t| (column_letter(grid.column_number(c)), t))
+        })
+        .collect()
+}
+
+fn scale_for(kind: Kind, unit: &str) -> Result<f64, String> {
+    let u = unit.trim();
+    let ok = |v: f64| Ok(v);
+    match (kind, u) {
+        (_, "") => ok(1.0),
+        (Kind::Water, "cm" | "g cm2" | "g cm 2") => ok(1.0),
+        (Kind::Water, "mm" | "kg m2" | "kg m 2") => ok(0.1),
+        (Kind::Pressure, "hpa" | "mb" | "mbar") => ok(1.0),
+        (Kind::Pressure, "kpa") => ok(10.0),
+        (Kind::Pressure, "pa") => ok(0.01),
+        (Kind::Altitude, "m" | "m asl" | "m a s l") => ok(1.0),
+        (Kind::Altitude, "km" | "km asl") => ok(1000.0),
+        (Kind::LayerTop, "km" | "km agl" | "km a g l" | "km asl") => ok(1.0),
+        (Kind::LayerTop, "m" | "m agl" | "m a g l") => ok(0.001),
+        (Kind::Ozone, "du") => ok(1.0),
+        (Kind::Ozone, "atm cm" | "cm") => ok(1000.0),
+        (Kind::Ssa | Kind::Albedo, "percent") => ok(0.01),
+        (Kind::Latitude | Kind::Longitude, _) if u.starts_with("deg") || u == "n" || u == "e" => {
+            ok(1.0)
+        }
+        (Kind::UtcOffset, "h" | "hours" | "hour") => ok(1.0),
+        (
+            Kind::Aod | Kind::Ssa | Kind::Asymmetry | Kind::Albedo | Kind::Angstrom,
+            "1" | "unitless" | "dimensionless" | "fraction" | "none" | "0 1",
+        ) => ok(1.0),
+        (Kind::Time | Kind::Date | Kind::Site | Kind::Surface, _) => ok(1.0),
+        _ => Err(format!(
+            "unit \"{u}\" is not understood for {}",
+            kind.name()
+        )),
+    }
+}
+
+/// Work out the layout of a data sheet: header row, units row, mapping (detected, with the
+/// job file's overrides), units.
+///
+/// Errors: a message (without the file prefix) when no header is found or an override names
+/// no column.
+pub(crate) fn data_layout(
+    grid: &Grid,
+    spec: &InputSpec,
+    file: &str,
+    sheet: &str,
+) -> Result<Layout, IngestError> {
+    let layout_err = |message: String| IngestError::Layout {
+        path: file.to_string(),
+        message,
+    };
+    let here = place(file, sheet);
+    if grid.height() == 0 || grid.width() == 0 {
+        return Err(layout_err(format!(
+            "{here} is empty: expected a header row (time, AOD, SSA, g, ...) and data rows under it"
+        )));
+    }
+    let header_row = match spec.header_row {
+        Some(n) => grid.row_index(n).ok_or_else(|| {
+            layout_err(format!("{here}: the job file sets the header row to {n}, but the sheet's rows are {}–{}", grid.row_number(0), grid.row_number(grid.height() - 1)))
+        })?,
+        None => detect::find_header_row(grid, true).ok_or_else(|| {
+            let mut shown = Vec::new();
+            for r in 0..grid.height().min(5) {
+                let cells = header_list(grid, r);
+                if !cells.is_empty() {
+                    let t: Vec<String> = cells.iter().take(8).map(|(_, t)| format!("\"{t}\"")).collect();
+                    shown.push(format!("row {}: {}", grid.row_number(r), t.join(", ")));
+                }
+            }
+            layout_err(format!(
+                "{here}: no header row found in the first {} rows: expected a row naming the columns, such as time, aod_500, angstrom, ssa_550, g_550, site. Found: {}. Set the header row in the job file if it is further down.",
+                detect::HEADER_SEARCH_ROWS,
+                if shown.is_empty() { "no text".to_string() } else { shown.join("; ") }
+            ))
+        })?,
+    };
+    let mut warnings = Vec::new();
+    let mut columns: Vec<Mapped> = Vec::new();
+    for c in 0..grid.width() {
+        let Some(text) = grid.cell(header_row, c).text() else {
+            continue;
+        };
+        let Some(m) = parse_header(&text) else {
+            continue;
+        };
+        let candidate = Mapped {
+            col: c,
+            kind: m.kind,
+            wavelength_nm: m.wavelength_nm,
+            header: text.clone(),
+            letter: column_letter(grid.column_number(c)),
+            unit: m.unit,
+            how: "detected",
+            scale: 1.0,
+            stated_offset_hours: None,
+        };
+        if let Some(prev) = columns.iter().find(|p| p.name() == candidate.name()) {
+            warnings.push(format!(
+                "{here}: column {} \"{}\" names {} again (already column {} \"{}\"); it is ignored",
+                candidate.letter,
+                text,
+                candidate.name(),
+                prev.letter,
+                prev.header
+            ));
+            continue;
+        }
+        columns.push(candidate);
+    }
+    // Job-file overrides.
+    for (key, target) in &spec.columns {
+        let Some(km) = parse_header(key) else {
+            let names: Vec<&str> = Kind::all().iter().map(|k| k.name()).collect();
+            return Err(layout_err(format!(
+                "the job file maps \"{key}\", which is not a quantity hazebook knows; expected one of {} (spectral ones with a wavelength, e.g. aod_500, ssa_675)",
+                names.join(", ")
+            )));
+        };
+        let t = target.trim();
+        let by_header = (0..grid.width()).find(|&c| {
+            grid.cell(header_row, c).text().is_some_and(|h| {
+                h.eq_ignore_ascii_case(t) || detect::normalised(&h) == detect::normalised(t)
+            })
+        });
+        let col = by_header.or_else(|| column_index(t).and_then(|i| grid.column_offset(i)));
+        let Some(col) = col else {
+            let list: Vec<String> = header_list(grid, header_row)
+                .iter()
+                .map(|(l, h)| format!("{l} \"{h}\""))
+                .collect();
+            return Err(layout_err(format!(
+                "{here}: the job file maps {key} to \"{t}\", but no header in row {} is \"{t}\" and it is no column letter of the sheet. Headers found: {}",
+                grid.row_number(header_row),
+                list.join(", ")
+            )));
+        };
+        let header = grid.cell(header_row, col).text().unwrap_or_default();
+        let from_header = parse_header(&header);
+        let wavelength_nm = km
+            .wavelength_nm
+            .or(from_header.as_ref().and_then(|h| h.wavelength_nm));
+        let unit = if km.unit.is_empty() {
+            from_header.map(|h| h.unit).unwrap_or_default()
+        } else {
+            km.unit
+        };
+        let m = Mapped {
+            col,
+            kind: km.kind,
+            wavelength_nm,
+            header,
+            letter: column_letter(grid.column_number(col)),
+            unit,
+            how: "job file",
+            scale: 1.0,
+            stated_offset_hours: None,
+        };
+        let name = m.name();
+        columns.retain(|p| p.col != col && !(p.name() == name && p.how == "detected"));
+        columns.push(m);
+    }
+    columns.sort_by_key(|m| m.col);
+    // Units row.
+    let mapped_cols: Vec<usize> = columns.iter().map(|m| m.col).collect();
+    let units_row = match spec.units_row {
+        Some(n) => Some(grid.row_index(n).ok_or_else(|| {
+            layout_err(format!(
+                "{here}: the job file sets the units row to {n}, which is outside the sheet"
+            ))
+        })?),
+        None => {
+            let r = header_row + 1;
+            detect::looks_like_units_row(grid, r, &mapped_cols).then_some(r)
+        }
+    };
+    for m in &mut columns {
+        if m.unit.is_empty()
+            && let Some(u) = units_row.and_then(|r| grid.cell(r, m.col).text())
+        {
+            m.unit = detect::normalised(&u);
+            if m.unit == "percent" || u.trim() == "%" {
+                m.unit = "percent".into();
+            }
+        }
+        if matches!(m.kind, Kind::Time | Kind::Date) {
+            if m.unit.starts_with("utc") || m.unit.starts_with("gmt") {
+                m.stated_offset_hours = parse_offset_hours(&m.unit.replace(' ', ""));
+            }
+            continue;
+        }
+        match scale_for(m.kind, &m.unit) {
+            Ok(s) => m.scale = s,
+            Err(e) => {
+                return Err(layout_err(format!(
+                    "{here}, column {} \"{}\": {e}; expected {}",
+                    m.letter,
+                    m.header,
+                    match m.kind {
+                        Kind::Water => "cm or mm",
+                        Kind::Pressure => "hPa, mb, kPa or Pa",
+                        Kind::Altitude => "m or km",
+                        Kind::LayerTop => "km or m",
+                        Kind::Ozone => "DU or atm-cm",
+                        _ => "no unit (a fraction)",
+                    }
+                )));
+            }
+        }
+    }
+    let has_time = columns.iter().any(|m| m.kind == Kind::Time);
+    let has_date = columns.iter().any(|m| m.kind == Kind::Date);
+    let split_date_time = has_time && has_date;
+    if has_date && !has_time {
+        for m in &mut columns {
+            if m.kind == Kind::Date {
+                m.kind = Kind::Time;
+            }
+        }
+    }
+    for m in &columns {
+        if m.kind.spectral() && m.wavelength_nm.is_none() {
+            warnings.push(format!(
+                "{here}: column {} \"{}\" gives no wavelength; {} nm is assumed",
+                m.letter,
+                m.header,
+                format_number(DEFAULT_WAVELENGTH_NM)
+            ));
+        }
+    }
+    Ok(Layout {
+        header_row,
+        units_row,
+        columns,
+        warnings,
+        split_date_time,
+    })
+}
+
+/// Fail when a required quantity has no column, naming the closest header.
+pub(crate) fn require_columns(
+    layout: &Layout,
+    grid: &Grid,
+    file: &str,
+    sheet: &str,
+    sites: &SiteTable,
+) -> Result<(), IngestError> {
+    let here = place(file, sheet);
+    let mut missing = Vec::new();
+    for (kind, what) in [
+        (Kind::Time, "the measurement time (time, or date and time)"),
+        (Kind::Aod, "AOD (e.g. aod_500)"),
+        (Kind::Ssa, "single-scattering albedo (e.g. ssa_550)"),
+        (Kind::Asymmetry, "asymmetry factor (e.g. g_550)"),
+    ] {
+        if !layout.has(kind) {
+            missing.push((kind, what));
+        }
+    }
+    let located_by_sites =
+        !sites.is_empty() && (layout.has(Kind::Site) || sites.entries.len() == 1);
+    let has_location = layout.has(Kind::Latitude) && layout.has(Kind::Longitude);
+    if !has_location && !located_by_sites {
+        if !layout.has(Kind::Latitude) {
+            missing.push((
+                Kind::Latitude,
+                "latitude (or a site column and a site table)",
+            ));
+        }
+        if !layout.has(Kind::Longitude) {
+            missing.push((
+                Kind::Longitude,
+                "longitude (or a site column and a site table)",
+            ));
+        }
+    }
+    if missing.is_empty() {
+        return Ok(());
+    }
+    let mapped: Vec<usize> = layout.columns.iter().map(|m| m.col).collect();
+    let unmapped: Vec<String> = (0..grid.width())
+        .filter(|c| !mapped.contains(c))
+        .filter_map(|c| grid.cell(layout.header_row, c).text())
+        .collect();
+    let found: Vec<String> = layout
+        .columns
+        .iter()
+        .map(|m| format!("{} \"{}\" → {}", m.letter, m.header, m.name()))
+        .collect();
+    let mut lines = Vec::new();
+    for (kind, what) in &missing {
+        let mut l = format!("no column for {what}");
+        if let Some(h) = closest_header(*kind, &unmapped) {
+            let letter = (0..grid.width())
+                .find(|&c| grid.cell(layout.header_row, c).text().as_deref() == Some(h))
+                .map(|c| column_letter(grid.column_number(c)))
+                .unwrap_or_default();
+            l.push_str(&format!(
+                "; the closest header is \"{h}\" (column {letter}): if that is it, rename it or map it in the job file ({} = \"{letter}\")",
+                kind.name()
+            ));
+        }
+        lines.push(l);
+    }
+    Err(IngestError::Layout {
+        path: file.to_string(),
+        message: format!(
+            "{here}, header row {}: {}. Understood: {}. Unrecognised headers: {}.",
+            grid.row_number(layout.header_row),
+            lines.join("; "),
+            if found.is_empty() {
+                "nothing".into()
+            } else {
+                found.join(", ")
+            },
+            if unmapped.is_empty() {
+                "none".into()
+            } else {
+                unmapped
+                    .iter()
+                    .map(|h| format!("\"{h}\""))
+                    .collect::<Vec<_>>()
+                    .join(", ")
+            }
+        ),
+    })
+}
+
+/// Read a site sheet into site records.
+///
+/// Errors: a value outside its range or not a number (the site table is small and
+/// hand-made: fix it rather than guess).
+pub(crate) fn read_site_sheet(
+    grid: &Grid,
+    header_row: usize,
+    fill: &FillValues,
+    file: &str,
+    sheet: &str,
+) -> Result<Vec<SiteInfo>, IngestError> {
+    let here = place(file, sheet);
+    let mut cols: Vec<(usize, Kind, f64)> = Vec::new();
+    for c in 0..grid.width() {
+        if let Some(m) = grid
+            .cell(header_row, c)
+            .text()
+            .and_then(|t| parse_header(&t))
+        {
+            if cols.iter().any(|(_, k, _)| *k == m.kind) {
+                continue;
+            }
+            let scale = scale_for(m.kind, &m.unit).unwrap_or(1.0);
+            cols.push((c, m.kind, scale));
+        }
+    }
+    let mut start = header_row + 1;
+    let mapped: Vec<usize> = cols.iter().map(|c| c.0).collect();
+    if detect::looks_like_units_row(grid, start, &mapped) {
+        start += 1;
+    }
+    let mut out = Vec::new();
+    for r in start..grid.height() {
+        let mut s = SiteInfo::default();
+        for &(c, kind, scale) in &cols {
+            let cell = grid.cell(r, c);
+            let bad = |why: String| IngestError::Layout {
+                path: file.to_string(),
+                message: format!(
+                    "{here}, cell {} ({}): {why}. Fix the site table and rerun.",
+                    grid.a1(r, c),
+                    kind.name()
+                ),
+            };
+            match kind {
+                Kind::Site => s.name = cell.text().unwrap_or_default(),
+                Kind::Surface if !fill.is_missing(&cell) => {
+                    s.surface = Some(parse_surface(&cell).ok_or_else(|| {
+                        bad(format!("expected land or ocean, found {}", cell.display()))
+                    })?);
+                }
+                Kind::Surface => {}
+                Kind::UtcOffset if matches!(cell, Cell::Text(_)) && !fill.is_missing(&cell) => {
+                    let t = cell.text().unwrap_or_default();
+                    s.utc_offset_hours = Some(parse_offset_hours(&t).ok_or_else(|| {
+                        bad(format!(
+                            "expected a UTC offset such as +8 or UTC-03:30, found \"{t}\""
+                        ))
+                    })?);
+                }
+                Kind::Latitude
+                | Kind::Longitude
+                | Kind::Altitude
+                | Kind::Pressure
+                | Kind::Albedo
+                | Kind::UtcOffset => {
+                    let v = match read_number(&cell, fill) {
+                        NumberRead::Missing => continue,
+                        NumberRead::Bad(why) => {
+                            return Err(bad(format!("{why}, found {}", cell.display())));
+                        }
+                        NumberRead::Value(v) => v * scale,
+                    };
+                    if let Check::Reject(why) = check(kind, v, &cell.display()) {
+                        return Err(bad(why));
+                    }
+                    let slot = match kind {
+                        Kind::Latitude => &mut s.latitude_deg,
+                        Kind::Longitude => &mut s.longitude_deg,
+                        Kind::Altitude => &mut s.altitude_m,
+                        Kind::Pressure => &mut s.pressure_hpa,
+                        Kind::Albedo => &mut s.albedo,
+                        _ => &mut s.utc_offset_hours,
+                    };
+                    *slot = Some(v);
+                }
+                _ => {}
+            }
+        }
+        if !s.name.is_empty() {
+            out.push(s);
+        }
+    }
+    Ok(out)
+}
+
+fn parse_surface(cell: &Cell<'_>) -> Option<SurfaceType> {
+    let t = cell.text()?.to_lowercase();
+    match t.trim() {
+        "land" | "l" | "ground" => Some(SurfaceType::Land),
+        "ocean" | "sea" | "water" | "o" | "s" => Some(SurfaceType::Ocean),
+        _ => None,
+    }
+}
+
+/// The value of an assumption, kept cheap per row and spelled out once at the end.
+#[derive(Debug, Clone, PartialEq, Eq, Hash)]
+pub(crate) enum Val {
+    /// A number (f64 bits).
+    Num(u64),
+    /// A number from a site's record.
+    AtSite(u64, Arc<str>),
+    SurfaceAt(&'static str, Arc<str>),
+    /// A UTC offset [h] (f64 bits).
+    Offset(u64),
+    OffsetAt(u64, Arc<str>),
+    Text(&'static str),
+    Owned(String),
+}
+
+impl Val {
+    pub(crate) fn text(&self) -> String {
+        let f = |b: &u64| format_number(f64::from_bits(*b));
+        match self {
+            Val::Num(b) => f(b),
+            Val::AtSite(b, site) => format!("{} (site {site})", f(b)),
+            Val::SurfaceAt(s, site) => format!("{s} (site {site})"),
+            Val::Offset(b) => format_offset(f64::from_bits(*b)),
+            Val::OffsetAt(b, site) => {
+                format!("{} (site {site})", format_offset(f64::from_bits(*b)))
+            }
+            Val::Text(t) => t.to_string(),
+            Val::Owned(s) => s.clone(),
+        }
+    }
+}
+
+/// An accepted row before the frame is built.
+#[derive(Debug, Clone)]
+pub(crate) struct Accepted {
+    pub origin: RowOrigin,
+    pub site: String,
+    /// The site as compared for duplicates.
+    pub site_key: Arc<str>,
+    pub observation: Observation,
+    pub warnings: Vec<RowWarning>,
+    pub assumptions: Vec<(&'static str, Val, ValueSource)>,
+    /// AOD as measured, (wavelength [nm], value).
+    pub aod_measured: Vec<(f64, f64)>,
+    pub albedo: Option<f64>,
+    pub surface: SurfaceType,
+}
+
+/// Rows of all sheets so far.
+#[derive(Debug, Default)]
+pub(crate) struct Rows {
+    pub accepted: Vec<Accepted>,
+    pub rejected: Vec<Rejection>,
+    pub counts: Counts,
+    pub warnings: Vec<String>,
+    /// (site key, time [ms]) → index of the first accepted row.
+    seen: HashMap<(Arc<str>, i64), usize, FxBuild>,
+}
+
+/// Everything the row reader needs about a sheet.
+pub(crate) struct SheetContext<'a> {
+    pub file: &'a str,
+    pub sheet: &'a str,
+    pub grid: &'a Grid,
+    pub layout: &'a Layout,
+    pub is_1904: bool,
+    pub fill: &'a FillValues,
+    pub sites: &'a SiteTable,
+    pub spec: &'a InputSpec,
+}
+
+struct Problem {
+    col: Option<usize>,
+    column: String,
+    value: String,
+    reason: String,
+}
+
+impl Problem {
+    fn at(m: &Mapped, cell: &Cell<'_>, reason: String) -> Self {
+        Problem {
+            col: Some(m.col),
+            column: m.name(),
+            value: cell.text().unwrap_or_default(),
+            reason,
+        }
+    }
+}
+
+#[derive(Default)]
+struct RowValues {
+    time: Option<(ParsedTime, usize)>,
+    date: Option<ParsedTime>,
+    time_of_day: Option<(f64, Option<i32>)>,
+    time_col: Option<usize>,
+    site: Option<String>,
+    latitude: Option<f64>,
+    longitude: Option<f64>,
+    altitude: Option<f64>,
+    pressure: Option<f64>,
+    albedo: Option<f64>,
+    surface: Option<SurfaceType>,
+    ozone: Option<f64>,
+    water: Option<f64>,
+    layer_top: Option<f64>,
+    angstrom: Option<f64>,
+    utc_offset: Option<f64>,
+    aod: Vec<(f64, f64)>,
+    ssa: Vec<(f64, f64)>,
+    asymmetry: Vec<(f64, f64)>,
+}
+
+/// Read every data row of a sheet into `rows`.
+pub(crate) fn read_rows(ctx: &SheetContext<'_>, rows: &mut Rows) {
+    let grid = ctx.grid;
+    let layout = ctx.layout;
+    let start = layout.data_start();
+    let measurement_cols: Vec<usize> = layout
+        .columns
+        .iter()
+        .filter(|m| m.kind.is_measurement())
+        .map(|m| m.col)
+        .collect();
+    let mapped_cols: Vec<usize> = layout.columns.iter().map(|m| m.col).collect();
+    let last = (start..grid.height()).rev().find(|&r| {
+        measurement_cols
+            .iter()
+            .any(|&c| !ctx.fill.is_missing(&grid.cell(r, c)))
+    });
+    let end = last.map_or(start, |l| l + 1);
+    // Note rows after the data: ignored, but said.
+    let notes: Vec<u32> = (end..grid.height())
+        .filter(|&r| !grid.row_is_empty(r))
+        .map(|r| grid.row_number(r))
+        .collect();
+    if !notes.is_empty() {
+        rows.warnings.push(format!(
+            "{}: {} row(s) after the last data row hold no measurement and are read as notes (rows {})",
+            place(ctx.file, ctx.sheet),
+            notes.len(),
+            notes.iter().map(|n| n.to_string()).collect::<Vec<_>>().join(", ")
+        ));
+    }
+    // Rows are read and checked in parallel (each on its own), then counted and checked for
+    // duplicates in order.
+    use rayon::prelude::*;
+    let results: Vec<(usize, Result<Option<Accepted>, Problem>)> = (start..end)
+        .into_par_iter()
+        .with_min_len(1024)
+        .filter_map(|r| {
+            let any_mapped = mapped_cols
+                .iter()
+                .any(|&c| !matches!(grid.cell(r, c), Cell::Empty));
+            if !any_mapped && grid.row_is_empty(r) {
+                return None;
+            }
+            Some((r, read_row(ctx, r)))
+        })
+        .collect();
+    rows.accepted.reserve(results.len());
+    rows.seen.reserve(results.len());
+    for (r, result) in results {
+        rows.counts.read += 1;
+        let origin = RowOrigin {
+            file: ctx.file.to_string(),
+            sheet: ctx.sheet.to_string(),
+            row: grid.row_number(r),
+        };
+        match result {
+            Err(p) => {
+                rows.counts.rejected += 1;
+                rows.rejected.push(Rejection {
+                    file: origin.file,
+                    sheet: origin.sheet,
+                    row: origin.row,
+                    cell: p.col.map(|c| grid.a1(r, c)).unwrap_or_default(),
+                    column: p.column,
+                    value: p.value,
+                    reason: p.reason,
+                });
+            }
+            Ok(None) => rows.counts.outside_period += 1,
+            Ok(Some(mut acc)) => {
+                let key = (
+                    if acc.site.is_empty() {
+                        Arc::from(format!(
+                            "{:.5},{:.5}",
+                            acc.observation.latitude_deg, acc.observation.longitude_deg
+                        ))
+                    } else {
+                        acc.site_key.clone()
+                    },
+                    acc.observation.time_utc.timestamp_millis(),
+                );
+                if let Some(&first) = rows.seen.get(&key) {
+                    let f = &rows.accepted[first].origin;
+                    let first_ref = if f.file == origin.file && f.sheet == origin.sheet {
+                        format!("row {}", f.row)
+                    } else {
+                        format!("{}, row {}", place(&f.file, &f.sheet), f.row)
+                    };
+                    let tc = layout
+                        .columns
+                        .iter()
+                        .find(|m| m.kind == Kind::Time)
+                        .map(|m| m.col);
+                    rows.counts.rejected += 1;
+                    rows.rejected.push(Rejection {
+                        file: origin.file,
+                        sheet: origin.sheet,
+                        row: origin.row,
+                        cell: tc.map(|c| grid.a1(r, c)).unwrap_or_default(),
+                        column: "time".into(),
+                        value: acc.observation.time_utc.format("%Y-%m-%dT%H:%M:%SZ").to_string(),
+                        reason: format!(
+                            "duplicate of {first_ref}: same site ({}) and time ({}); the first is computed",
+                            if acc.site.is_empty() { key.0.to_string() } else { acc.site.clone() },
+                            acc.observation.time_utc.format("%Y-%m-%d %H:%M:%S UTC")
+                        ),
+                    });
+                    continue;
+                }
+                acc.origin = origin;
+                rows.seen.insert(key, rows.accepted.len());
+                rows.counts.computed += 1;
+                rows.accepted.push(acc);
+            }
+        }
+    }
+}
+
+/// Read, check and resolve one row. `Ok(None)`: outside the selected period.
+fn read_row(ctx: &SheetContext<'_>, r: usize) -> Result<Option<Accepted>, Problem> {
+    let grid = ctx.grid;
+    let fill = ctx.fill;
+    let mut v = RowValues::default();
+    let mut warnings: Vec<RowWarning> = Vec::new();
+    for m in &ctx.layout.columns {
+        let cell = grid.cell(r, m.col);
+        match m.kind {
+            Kind::Time => {
+                v.time_col = Some(m.col);
+                if ctx.layout.split_date_time {
+                    match read_time_of_day(&cell, ctx.is_1904, fill) {
+                        Ok(t) => v.time_of_day = t,
+                        Err(Some(TimeRead::Value(p))) => v.time = Some((p, m.col)),
+                        Err(Some(TimeRead::Bad(why))) => {
+                            return Err(Problem::at(
+                                m,
+                                &cell,
+                                format!("{why}, found {}", cell.display()),
+                            ));
+                        }
+                        Err(_) => {
+                            return Err(Problem::at(
+                                m,
+                                &cell,
+                                format!(
+                                    "expected a time of day (a time cell or text such as 10:30:00), found {}",
+                                    cell.display()
+                                ),
+                            ));
+                        }
+                    }
+                } else {
+                    match read_time(&cell, ctx.is_1904, fill) {
+                        TimeRead::Missing => {}
+                        TimeRead::Value(p) => {
+                            if !p.has_time {
+                                warnings.push(RowWarning {
+                                    cell: grid.a1(r, m.col),
+                                    message: "the time cell holds a date without a time of day; 00:00 is used".into(),
+                                });
+                            }
+                            v.time = Some((p, m.col));
+                        }
+                        TimeRead::Bad(why) => {
+                            return Err(Problem::at(
+                                m,
+                                &cell,
+                                format!("{why}, found {}", cell.display()),
+                            ));
+                        }
+                    }
+                }
+            }
+            Kind::Date => match read_date(&cell, ctx.is_1904, fill) {
+                TimeRead::Missing => {}
+                TimeRead::Value(p) => v.date = Some(p),
+                TimeRead::Bad(why) => {
+                    return Err(Problem::at(
+                        m,
+                        &cell,
+                        format!("{why}, found {}", cell.display()),
+                    ));
+                }
+            },
+            Kind::Site => {
+                if !fill.is_missing(&cell) {
+                    v.site = cell.text();
+                }
+            }
+            Kind::Surface => {
+                if !fill.is_missing(&cell) {
+                    v.surface = Some(parse_surface(&cell).ok_or_else(|| {
+                        Problem::at(
+                            m,
+                            &cell,
+                            format!("expected land or ocean, found {}", cell.display()),
+                        )
+                    })?);
+                }
+            }
+            Kind::UtcOffset if matches!(cell, Cell::Text(_)) && !fill.is_missing(&cell) => {
+                let t = cell.text().unwrap_or_default();
+                match parse_offset_hours(&t) {
+                    Some(h) => v.utc_offset = Some(h),
+                    None => {
+                        return Err(Problem::at(
+                            m,
+                            &cell,
+                            format!("expected a UTC offset such as +8 or UTC-03:30, found \"{t}\""),
+                        ));
+                    }
+                }
+            }
+            kind => {
+                let x = match read_number(&cell, fill) {
+                    NumberRead::Missing => continue,
+                    NumberRead::Bad(why) => {
+                        return Err(Problem::at(
+                            m,
+                            &cell,
+                            format!("{why}, found {}", cell.display()),
+                        ));
+                    }
+                    NumberRead::Value(x) => x * m.scale,
+                };
+                // The message text is built only for a rejection.
+                match check(kind, x, "") {
+                    Check::Ok => {}
+                    Check::Warn(w) => warnings.push(RowWarning {
+                        cell: grid.a1(r, m.col),
+                        message: w,
+                    }),
+                    Check::Reject(_) => {
+                        let found = if m.scale != 1.0 {
+                            format!("{} {} (= {})", cell.display(), m.unit, format_number(x))
+                        } else {
+                            cell.display()
+                        };
+                        let why = match check(kind, x, &found) {
+                            Check::Reject(why) => why,
+                            _ => found,
+                        };
+                        return Err(Problem::at(m, &cell, why));
+                    }
+                }
+                let wl = m.wavelength();
+                match kind {
+                    Kind::Aod => v.aod.push((wl, x)),
+                    Kind::Ssa => v.ssa.push((wl, x)),
+                    Kind::Asymmetry => v.asymmetry.push((wl, x)),
+                    Kind::Latitude => v.latitude = Some(x),
+                    Kind::Longitude => v.longitude = Some(x),
+                    Kind::Altitude => v.altitude = Some(x),
+                    Kind::Pressure => v.pressure = Some(x),
+                    Kind::Albedo => v.albedo = Some(x),
+                    Kind::Ozone => v.ozone = Some(x),
+                    Kind::Water => v.water = Some(x),
+                    Kind::LayerTop => v.layer_top = Some(x),
+                    Kind::Angstrom => v.angstrom = Some(x),
+                    Kind::UtcOffset => v.utc_offset = Some(x),
+                    _ => {}
+                }
+            }
+        }
+    }
+    let first_col = |kind: Kind| ctx.layout.columns.iter().find(|m| m.kind == kind);
+    let missing = |kind: Kind, what: &str| {
+        let m = first_col(kind);
+        Problem {
+            col: m.map(|m| m.col),
+            column: m.map(|m| m.name()).unwrap_or_else(|| kind.name().into()),
+            value: String::new(),
+            reason: format!(
+                "{what} is missing (empty or a fill value); the row cannot be computed"
+            ),
+        }
+    };
+    // Time.
+    let parsed = match (v.time, v.date, v.time_of_day) {
+        (Some((p, _)), _, _) => p,
+        (None, Some(d), Some((secs, off))) => combine(d, secs, off),
+        (None, Some(_), None) => return Err(missing(Kind::Time, "the time of day")),
+        (None, None, _) => {
+            return Err(if ctx.layout.split_date_time {
+                missing(Kind::Date, "the date")
+            } else {
+                missing(Kind::Time, "the measurement time")
+            });
+        }
+    };
+    if v.aod.is_empty() {
+        return Err(missing(Kind::Aod, "AOD"));
+    }
+    if v.ssa.is_empty() {
+        return Err(missing(Kind::Ssa, "the single-scattering albedo"));
+    }
+    if v.asymmetry.is_empty() {
+        return Err(missing(Kind::Asymmetry, "the asymmetry factor"));
+    }
+    let mut assumptions: Vec<(&'static str, Val, ValueSource)> = Vec::with_capacity(12);
+    let d = &ctx.spec.defaults;
+    // Site.
+    let site_name = match v.site.take() {
+        Some(s) => s,
+        None if !ctx.layout.has(Kind::Site) && ctx.sites.entries.len() == 1 => {
+            let n = ctx.sites.entries[0].name.clone();
+            let src = ctx.sites.entries[0]
+                .latitude_deg
+                .map_or(ValueSource::JobFile, |s| s.source);
+            assumptions.push(("site", Val::Owned(n.clone()), src));
+            n
+        }
+        None => String::new(),
+    };
+    let entry = ctx.sites.get(&site_name);
+    // The site table's spelling names the site (` beta` and `Beta` are one site).
+    let site_name = entry.map_or(site_name, |e| e.name.clone());
+    fn from_site(
+        assumptions: &mut Vec<(&'static str, Val, ValueSource)>,
+        site: &Arc<str>,
+        q: &'static str,
+        row: Option<f64>,
+        value: Option<Sourced<f64>>,
+    ) -> Option<f64> {
+        if row.is_some() {
+            return row;
+        }
+        value.map(|s| {
+            assumptions.push((q, Val::AtSite(s.value.to_bits(), site.clone()), s.source));
+            s.value
+        })
+    }
+    let site_rc: Arc<str> = entry.map_or_else(
+        || Arc::from(site_key(&site_name).as_ref()),
+        |e| e.rc.clone(),
+    );
+    let latitude = from_site(
+        &mut assumptions,
+        &site_rc,
+        "latitude_deg",
+        v.latitude,
+        entry.and_then(|e| e.latitude_deg),
+    );
+    let longitude = from_site(
+        &mut assumptions,
+        &site_rc,
+        "longitude_deg",
+        v.longitude,
+        entry.and_then(|e| e.longitude_deg),
+    );
+    let (Some(latitude), Some(mut longitude)) = (latitude, longitude) else {
+        let site_col = first_col(Kind::Site);
+        let reason = if site_name.is_empty() {
+            "no latitude/longitude: the row gives none and names no site of the site table"
+                .to_string()
+        } else if entry.is_none() {
+            format!(
+                "no latitude/longitude: the row gives none and site \"{site_name}\" is not in the site table"
+            )
+        } else {
+            format!(
+                "no latitude/longitude: the row gives none and the site table gives none for \"{site_name}\""
+            )
+        };
+        return Err(Problem {
+            col: site_col
+                .map(|m| m.col)
+                .or(first_col(Kind::Latitude).map(|m| m.col)),
+            column: if site_col.is_some() {
+                "site".into()
+            } else {
+                "latitude".into()
+            },
+            value: site_name.clone(),
+            reason,
+        });
+    };
+    if longitude >= 180.0 {
+        longitude -= 360.0;
+    }
+    let altitude_m = from_site(
+        &mut assumptions,
+        &site_rc,
+        "altitude_m",
+        v.altitude,
+        entry.and_then(|e| e.altitude_m),
+    )
+    .unwrap_or_else(|| {
+        assumptions.push((
+            "altitude_m",
+            Val::Num(d.altitude_m.to_bits()),
+            default_source(d, |d| d.altitude_m),
+        ));
+        d.altitude_m
+    });
+    let pressure_hpa = from_site(
+        &mut assumptions,
+        &site_rc,
+        "pressure_hpa",
+        v.pressure,
+        entry.and_then(|e| e.pressure_hpa),
+    )
+    .or_else(|| {
+        if let Some(p) = d.pressure_hpa {
+            assumptions.push(("pressure_hpa", Val::Num(p.to_bits()), ValueSource::JobFile));
+            Some(p)
+        } else {
+            assumptions.push((
+                "pressure_hpa",
+                Val::Text("from altitude (standard atmosphere)"),
+                ValueSource::BuiltIn,
+            ));
+            None
+        }
+    });
+    // Surface: a row albedo is Lambertian; else the site's or job's surface type and albedo.
+    let (surface, albedo) = if let Some(a) = v.albedo {
+        (SurfaceType::Land, Some(a))
+    } else {
+        let surface_type = match (v.surface, entry.and_then(|e| e.surface)) {
+            (Some(s), _) => s,
+            (None, Some(s)) => {
+                assumptions.push((
+                    "surface",
+                    Val::SurfaceAt(surface_name(s.value), site_rc.clone()),
+                    s.source,
+                ));
+                s.value
+            }
+            (None, None) => {
+                if d.surface == SurfaceType::Ocean {
+                    assumptions.push((
+                        "surface",
+                        Val::Text("ocean"),
+                        default_source(d, |d| d.surface),
+                    ));
+                }
+                d.surface
+            }
+        };
+        match surface_type {
+            SurfaceType::Ocean => (SurfaceType::Ocean, None),
+            SurfaceType::Land => match entry.and_then(|e| e.albedo) {
+                Some(a) => {
+                    assumptions.push((
+                        "albedo",
+                        Val::AtSite(a.value.to_bits(), site_rc.clone()),
+                        a.source,
+                    ));
+                    (SurfaceType::Land, Some(a.value))
+                }
+                None => {
+                    assumptions.push((
+                        "albedo",
+                        Val::Num(d.albedo.to_bits()),
+                        default_source(d, |d| d.albedo),
+                    ));
+                    (SurfaceType::Land, Some(d.albedo))
+                }
+            },
+        }
+    };
+    let mut or_default = |q: &'static str, row: Option<f64>, value: f64, src: ValueSource| {
+        row.unwrap_or_else(|| {
+            assumptions.push((q, Val::Num(value.to_bits()), src));
+            value
+        })
+    };
+    let ozone_du = or_default(
+        "ozone_du",
+        v.ozone,
+        d.ozone_du,
+        default_source(d, |d| d.ozone_du),
+    );
+    let water_cm = or_default(
+        "water_cm",
+        v.water,
+        d.water_cm,
+        default_source(d, |d| d.water_cm),
+    );
+    let layer_top_km = or_default(
+        "layer_top_km",
+        v.layer_top,
+        d.layer_top_km,
+        default_source(d, |d| d.layer_top_km),
+    );
+    if layer_top_km <= d.layer_base_km {
+        let m = first_col(Kind::LayerTop);
+        return Err(Problem {
+            col: m.map(|m| m.col),
+            column: "layer_top".into(),
+            value: format_number(layer_top_km),
+            reason: format!(
+                "expected an aerosol layer top above the layer base ({} km), found {} km",
+                format_number(d.layer_base_km),
+                format_number(layer_top_km)
+            ),
+        });
+    }
+    // Time to UTC.
+    let stated = first_col(Kind::Time).and_then(|m| m.stated_offset_hours);
+    let offset_hours = if let Some(min) = parsed.offset_minutes {
+        min as f64 / 60.0
+    } else if let Some(h) = v.utc_offset {
+        h
+    } else if let Some(h) = stated {
+        h
+    } else if let Some(s) = entry.and_then(|e| e.utc_offset_hours) {
+        assumptions.push((
+            "utc_offset_hours",
+            Val::OffsetAt(s.value.to_bits(), site_rc.clone()),
+            s.source,
+        ));
+        s.value
+    } else {
+        let src = default_source(d, |d| d.utc_offset_hours);
+        let val = if d.utc_offset_hours == 0.0 {
+            Val::Text("+00:00 (times without an offset read as UTC)")
+        } else {
+            Val::Offset(d.utc_offset_hours.to_bits())
+        };
+        assumptions.push(("utc_offset_hours", val, src));
+        d.utc_offset_hours
+    };
+    let time_utc: DateTime<Utc> = (parsed.naive
+        - TimeDelta::milliseconds((offset_hours * 3_600_000.0).round() as i64))
+    .and_utc();
+    if let Some(p) = &ctx.spec.period
+        && (time_utc < p.start || time_utc >= p.end)
+    {
+        return Ok(None);
+    }
+    // Aerosol spectral quantities.
+    let mut aod = v.aod.clone();
+    aod.sort_by(|a, b| a.0.total_cmp(&b.0));
+    let (aod_wavelength_nm, aod_ref) = *aod
+        .iter()
+        .min_by(|a, b| (a.0 - 550.0).abs().total_cmp(&(b.0 - 550.0).abs()))
+        .unwrap_or(&(DEFAULT_WAVELENGTH_NM, 0.0));
+    if first_col(Kind::Aod).is_some_and(|m| m.wavelength_nm.is_none()) {
+        assumptions.push((
+            "aod_wavelength_nm",
+            Val::Num(DEFAULT_WAVELENGTH_NM.to_bits()),
+            ValueSource::BuiltIn,
+        ));
+    }
+    let angstrom = if let Some(a) = v.angstrom {
+        a
+    } else if let Some(a) = fit_angstrom(&aod) {
+        let wls: Vec<String> = aod
+            .iter()
+            .filter(|p| p.1 > 0.0)
+            .map(|p| format_number(p.0))
+            .collect();
+        assumptions.push((
+            "angstrom",
+            Val::Owned(format!(
+                "fitted to AOD at {} nm (least squares in ln AOD, ln λ)",
+                wls.join(", ")
+            )),
+            ValueSource::Workbook,
+        ));
+        a
+    } else {
+        if aod.len() >= 2 {
+            warnings.push(RowWarning {
+                cell: String::new(),
+                message: "fewer than two AOD values above zero: the Ångström exponent cannot be fitted; the default is used".into(),
+            });
+        }
+        assumptions.push((
+            "angstrom",
+            Val::Num(d.angstrom.to_bits()),
+            default_source(d, |d| d.angstrom),
+        ));
+        d.angstrom
+    };
+    let spectral = |mut pts: Vec<(f64, f64)>| -> Vec<SpectralValue> {
+        pts.sort_by(|a, b| a.0.total_cmp(&b.0));
+        pts.dedup_by(|a, b| a.0 == b.0);
+        pts.into_iter()
+            .map(|(w, value)| SpectralValue {
+                wavelength_nm: w,
+                value,
+            })
+            .collect()
+    };
+    for (kind, have) in [
+        (Kind::Ssa, v.ssa.len()),
+        (Kind::Asymmetry, v.asymmetry.len()),
+    ] {
+        let n = ctx.layout.columns.iter().filter(|m| m.kind == kind).count();
+        if have < n {
+            warnings.push(RowWarning {
+                cell: String::new(),
+                message: format!(
+                    "{} given at {have} of {n} wavelengths; the others are missing",
+                    kind.name()
+                ),
+            });
+        }
+    }
+    let observation = Observation {
+        time_utc,
+        latitude_deg: latitude,
+        longitude_deg: longitude,
+        altitude_m,
+        pressure_hpa,
+        aod: aod_ref,
+        aod_wavelength_nm,
+        angstrom,
+        ssa: spectral(v.ssa),
+        asymmetry: spectral(v.asymmetry),
+        surface: match (surface, albedo) {
+            (SurfaceType::Ocean, _) => Surface::OceanTaylor1996,
+            (SurfaceType::Land, a) => Surface::Lambertian {
+                albedo: a.unwrap_or(d.albedo),
+            },
+        },
+        ozone_du,
+        water_cm,
+        layer: AerosolLayer {
+            base_km: d.layer_base_km,
+            top_km: layer_top_km,
+        },
+    };
+    Ok(Some(Accepted {
+        origin: RowOrigin {
+            file: String::new(),
+            sheet: String::new(),
+            row: 0,
+        },
+        site: site_name,
+        site_key: site_rc,
+        observation,
+        warnings,
+        assumptions,
+        aod_measured: aod,
+        albedo,
+        surface,
+    }))
+}
+
+pub(crate) fn surface_name(s: SurfaceType) -> &'static str {
+    match s {
+        SurfaceType::Land => "land",
+        SurfaceType::Ocean => "ocean",
+    }
+}
+
+/// `+08:00`, `-03:30`.
+pub(crate) fn format_offset(hours: f64) -> String {
+    let sign = if hours < 0.0 { '-' } else { '+' };
+    let total = (hours.abs() * 60.0).round() as i64;
+    format!("{sign}{:02}:{:02}", total / 60, total % 60)
+}

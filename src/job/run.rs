@@ -1,0 +1,306 @@
+//! `hazebook run`: the main job.
+
+use std::path::PathBuf;
+use std::time::Instant;
+
+use anyhow::{Context as _, bail};
+use chrono::{DateTime, TimeZone, Utc};
+use polars::prelude::{BooleanChunked, NewChunkedArray};
+
+use super::log::Log;
+use super::output::{FolderLock, NameTokens, expand_name, overwrites_input};
+use super::plan::{self, Overrides, Plan};
+use super::summary;
+use crate::cli::{RunArgs, Status};
+use crate::ingest::{self, Ingested};
+use crate::physics::ObservationResult;
+use crate::physics::forcing::{Context, compute_batch_with_context};
+use crate::report::{self, About, ReportInput, SideFormat, template};
+
+/// Observations per progress step.
+const CHUNK: usize = 4096;
+
+/// Run the main job; errors are also written to the log file.
+pub fn run(a: &RunArgs) -> anyhow::Result<Status> {
+    let log = Log::new(a.quiet, a.log.as_deref())?;
+    match run_inner(a, &log) {
+        Ok(s) => Ok(s),
+        Err(e) => {
+            log.error(&format!("{e:#}"));
+            log.error("run failed; nothing was written");
+            Err(e)
+        }
+    }
+}
+
+fn run_inner(a: &RunArgs, log: &Log) -> anyhow::Result<Status> {
+    let ov = Overrides {
+        template: a.template.clone(),
+        out: a.out.clone(),
+        side_output: a.side_output.map(Into::into),
+    };
+    let plan = plan::build(&a.select, &ov)?;
+    let tpl = template::load(&plan.template)?;
+    log.info(&format!(
+        "hazebook {} — job {}{}",
+        env!("CARGO_PKG_VERSION"),
+        plan.job_name,
+        plan.period
+            .as_ref()
+            .map(|p| format!(", period {}", p.label))
+            .unwrap_or_default()
+    ));
+    if plan.job.is_none() {
+        log.info("no job file: built-in defaults and header detection (`hazebook init --from <workbook>` pins them in a job file)");
+    }
+
+    let t = Instant::now();
+    let ing = ingest::read_inputs(&plan.spec)?;
+    let t_read = t.elapsed().as_secs_f64();
+    for l in summary::understanding(&ing) {
+        log.info(&l);
+    }
+    for w in &ing.warnings {
+        log.warn(w);
+    }
+    if !ing.rejected.is_empty() {
+        log.warn(&format!(
+            "{} rows rejected (listed on the Rejected sheet):",
+            ing.rejected.len()
+        ));
+        for l in summary::rejected_lines(&ing, 10) {
+            log.warn(&l);
+        }
+    }
+    if ing.counts.read == 0 {
+        bail!(
+            "{}: no data rows found under the header; nothing to compute",
+            inputs_text(&plan)
+        );
+    }
+    if ing.observations.is_empty() && ing.counts.rejected == 0 {
+        bail!(
+            "no rows in period {}: {} rows read, all outside it; nothing written",
+            plan.period.as_ref().map_or("", |p| p.label.as_str()),
+            ing.counts.read
+        );
+    }
+
+    let t = Instant::now();
+    let results = compute(&ing, &plan, log);
+    let t_physics = t.elapsed().as_secs_f64();
+
+    std::fs::create_dir_all(&plan.out_dir).with_context(|| {
+        format!(
+            "{}: cannot create the output folder",
+            plan.out_dir.display()
+        )
+    })?;
+    let _lock = FolderLock::acquire(&plan.out_dir)
+        .with_context(|| format!("{}: cannot lock the output folder", plan.out_dir.display()))?;
+
+    let created = created_time(&ing);
+    let tokens = NameTokens {
+        job: plan.job_name.clone(),
+        site: None,
+        period: plan.period.as_ref().map(|p| p.label.clone()),
+        date: plan.today.format("%Y-%m-%d").to_string(),
+    };
+    let per_site = plan.output_pattern.contains("{site}");
+    let groups: Vec<(Option<String>, Vec<bool>)> = if per_site {
+        let mut names: Vec<String> = ing.sites.clone();
+        names.sort();
+        names.dedup();
+        names
+            .into_iter()
+            .map(|n| {
+                let mask = ing.sites.iter().map(|s| *s == n).collect();
+                (Some(n), mask)
+            })
+            .collect()
+    } else {
+        vec![(None, vec![true; ing.observations.len()])]
+    };
+
+    let mut t_write = 0.0;
+    let mut t_stats = 0.0;
+    let mut written: Vec<PathBuf> = Vec::new();
+    for (site, mask) in groups {
+        let name = expand_name(
+            &plan.output_pattern,
+            &NameTokens {
+                site: site.clone(),
+                ..tokens.clone()
+            },
+        )
+        .map_err(anyhow::Error::msg)?;
+        let path = plan.out_dir.join(&name);
+        if let Some(input) = overwrites_input(&path, &plan.spec.paths) {
+            bail!(
+                "{}: the output would overwrite the input {}; choose another --out folder or [report] output name",
+                path.display(),
+                input.display()
+            );
+        }
+        let (sub_ing, sub_res) = if site.is_some() {
+            subset(&ing, &results, &mask)?
+        } else {
+            (ing.clone(), results.clone())
+        };
+        let about = About {
+            job_name: plan.job_name.clone(),
+            version: env!("CARGO_PKG_VERSION").into(),
+            job_text: plan.job.as_ref().map(|j| j.text.clone()),
+            template_name: plan.template.clone(),
+            period: plan.period.as_ref().map(|p| p.label.clone()),
+            created_utc: created,
+            notes: notes(&plan, site.as_deref()),
+        };
+        let input = ReportInput {
+            ingested: &sub_ing,
+            results: &sub_res,
+            settings: &plan.settings,
+            mapping: &sub_ing.mapping,
+            about,
+        };
+        let t = Instant::now();
+        report::write_report(&path, &tpl, &input)?;
+        t_write += t.elapsed().as_secs_f64();
+        written.push(path.clone());
+        if let Some(fmt) = plan.side_output {
+            let ext = match fmt {
+                SideFormat::Csv => "csv",
+                SideFormat::Parquet => "parquet",
+            };
+            let side = path.with_extension(ext);
+            let t = Instant::now();
+            report::write_side_output(&side, fmt, &input)?;
+            t_stats += t.elapsed().as_secs_f64();
+            written.push(side);
+        }
+    }
+    for p in &written {
+        println!("{}", p.display());
+        log.info(&format!("wrote {}", p.display()));
+    }
+    if a.timings {
+        eprintln!("timing: read {t_read:.3} s");
+        eprintln!("timing: physics {t_physics:.3} s");
+        eprintln!("timing: write {t_write:.3} s");
+        if plan.side_output.is_some() {
+            eprintln!("timing: side-output {t_stats:.3} s");
+        }
+    }
+    let c = ing.counts;
+    log.info(&format!(
+        "done: {} rows computed, {} rejected{}",
+        c.computed,
+        c.rejected,
+        if c.outside_period > 0 {
+            format!(", {} outside the period", c.outside_period)
+        } else {
+            String::new()
+        }
+    ));
+    Ok(if ing.rejected.is_empty() {
+        Status::Success
+    } else {
+        Status::SuccessWithRejected
+    })
+}
+
+/// Compute every observation on all cores, with a progress bar on a terminal.
+fn compute(ing: &Ingested, plan: &Plan, log: &Log) -> Vec<ObservationResult> {
+    let ctx = Context::new(&plan.settings);
+    let pb = log.progress(ing.observations.len() as u64, "physics");
+    let mut out = Vec::with_capacity(ing.observations.len());
+    for chunk in ing.observations.chunks(CHUNK) {
+        out.extend(compute_batch_with_context(chunk, &plan.settings, &ctx));
+        pb.inc(chunk.len() as u64);
+    }
+    pb.finish_and_clear();
+    out
+}
+
+/// The rows of one site.
+fn subset(
+    ing: &Ingested,
+    results: &[ObservationResult],
+    mask: &[bool],
+) -> anyhow::Result<(Ingested, Vec<ObservationResult>)> {
+    fn pick<T: Clone>(v: &[T], mask: &[bool]) -> Vec<T> {
+        v.iter()
+            .zip(mask)
+            .filter(|(_, m)| **m)
+            .map(|(x, _)| x.clone())
+            .collect()
+    }
+    let frame = if ing.frame.height() == mask.len() {
+        ing.frame
+            .filter(&BooleanChunked::from_slice("mask".into(), mask))?
+    } else {
+        ing.frame.clone()
+    };
+    let mut sub = Ingested {
+        frame,
+        sites: pick(&ing.sites, mask),
+        origins: pick(&ing.origins, mask),
+        observations: pick(&ing.observations, mask),
+        row_warnings: pick(&ing.row_warnings, mask),
+        ..ing.clone()
+    };
+    sub.counts.computed = sub.observations.len();
+    Ok((sub, pick(results, mask)))
+}
+
+/// Document creation time: `SOURCE_DATE_EPOCH` if set, else the latest observation time, so
+/// the same inputs give the same bytes.
+fn created_time(ing: &Ingested) -> DateTime<Utc> {
+    if let Some(secs) = std::env::var("SOURCE_DATE_EPOCH")
+        .ok()
+        .and_then(|s| s.trim().parse::<i64>().ok())
+        && let Some(t) = Utc.timestamp_opt(secs, 0).single()
+    {
+        return t;
+    }
+    ing.observations
+        .iter()
+        .map(|o| o.time_utc)
+        .max()
+        .unwrap_or_else(|| {
+            Utc.with_ymd_and_hms(2000, 1, 1, 0, 0, 0)
+                .single()
+                .expect("valid date")
+        })
+}
+
+fn notes(plan: &Plan, site: Option<&str>) -> Vec<String> {
+    let mut v = Vec::new();
+    match &plan.job {
+        Some(j) => v.push(format!("Job file: {}", j.path.display())),
+        None => v.push("No job file: built-in defaults and header detection.".into()),
+    }
+    if let Some(p) = &plan.period {
+        v.push(format!(
+            "Period: {} (rows from {} to before {})",
+            p.label,
+            p.start.format("%Y-%m-%d"),
+            p.end.format("%Y-%m-%d")
+        ));
+    }
+    if let Some(s) = site {
+        v.push(format!(
+            "Site: {s} (one report per site; rejected rows of all sites are listed)"
+        ));
+    }
+    v
+}
+
+fn inputs_text(plan: &Plan) -> String {
+    plan.spec
+        .paths
+        .iter()
+        .map(|p: &PathBuf| p.display().to_string())
+        .collect::<Vec<_>>()
+        .join(", ")
+}

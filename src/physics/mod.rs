@@ -1,0 +1,24 @@
+//! Clear-sky shortwave radiative transfer for one observation: pure functions, no I/O.
+//!
+//! One module per physical process (solar geometry, solar spectrum, Rayleigh scattering,
+//! gas absorption, aerosol spectral model, two-stream layer solutions, adding of layers,
+//! surface, diurnal means) and a driver (`forcing`) that turns an [`Observation`] and a
+//! [`Settings`] into an [`ObservationResult`].
+//!
+//! Sibling modules refer to each other through `super::`, never `crate::`, so that this
+//! directory also builds as a crate of its own.
+
+pub mod aerosol;
+pub mod column;
+pub mod diurnal;
+pub mod forcing;
+pub mod gases;
+pub mod rayleigh;
+pub mod references;
+pub mod solar;
+pub mod spectrum;
+pub mod surface;
+pub mod two_stream;
+mod types;
+
+pub use types::*;
