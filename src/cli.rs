@@ -47,6 +47,14 @@ pub enum Command {
     Templates(TemplatesArgs),
     /// Idealised sensitivity tables: DRE over lists of AOD, SSA, g, albedo and cos(zenith).
     Grid(GridArgs),
+    /// One report from the partial results of runs partitioned by site or period.
+    ///
+    /// Reads the `.partial.json` files that `run --partial` writes, checks that they come from
+    /// one hazebook version with the same settings and that no input row is in two of them,
+    /// and recomputes every statistic from the rows. Cost: reading the bundles and writing the
+    /// workbook; no radiative transfer.
+    #[command(after_help = EXIT_HELP)]
+    Merge(MergeArgs),
 }
 
 /// Options shared by `run` and `check`.
@@ -84,6 +92,48 @@ pub struct RunArgs {
     /// Print the time of each stage on stderr (`timing: <stage> <seconds> s`).
     #[arg(long)]
     pub timings: bool,
+    /// Keep only the rows of these sites (repeat, or a comma list); rows of other sites are
+    /// counted as outside the period. Without `{site}` in the output name, `-<site>` is added
+    /// before its extension.
+    #[arg(long = "site", value_name = "NAME", value_delimiter = ',')]
+    pub sites: Vec<String>,
+    /// Also write the partial results beside the report (`<report stem>.partial.json`), for
+    /// `hazebook merge`.
+    #[arg(long)]
+    pub partial: bool,
+}
+
+#[derive(Debug, Args, Clone)]
+pub struct MergeArgs {
+    /// Partial-results files written by `run --partial` (a shell glob such as
+    /// `parts/*.partial.json` works).
+    #[arg(required = true, value_name = "PARTIAL.json")]
+    pub bundles: Vec<PathBuf>,
+    /// Output folder (created if missing); default `.`.
+    #[arg(long, value_name = "DIR")]
+    pub out: Option<PathBuf>,
+    /// Report template: a built-in name or a TOML file; default: the template of the runs
+    /// when they agree, else `full`.
+    #[arg(long)]
+    pub template: Option<String>,
+    /// Job name in the report and in `{job}`; default: that of the first bundle.
+    #[arg(long)]
+    pub name: Option<String>,
+    /// Output name with `{job}`, `{period}`, `{date}`; default `{job}-merged-report.xlsx`.
+    #[arg(long, value_name = "PATTERN")]
+    pub output: Option<String>,
+    /// Also write the results at full precision as csv or parquet.
+    #[arg(long, value_enum)]
+    pub side_output: Option<SideOutputArg>,
+    /// Append log lines to this file.
+    #[arg(long, value_name = "FILE")]
+    pub log: Option<PathBuf>,
+    /// Only errors on stderr.
+    #[arg(long, short)]
+    pub quiet: bool,
+    /// Date for `{date}` (YYYY-MM-DD); default: today (UTC).
+    #[arg(long, value_name = "YYYY-MM-DD")]
+    pub today: Option<String>,
 }
 
 #[derive(Debug, Clone, Copy, clap::ValueEnum)]
@@ -232,5 +282,6 @@ pub fn run(cli: Cli) -> anyhow::Result<Status> {
         Command::Init(a) => job::init::init(&a),
         Command::Templates(a) => job::templates::templates(&a),
         Command::Grid(a) => job::grid::grid(&a),
+        Command::Merge(a) => job::merge::merge(&a),
     }
 }

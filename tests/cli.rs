@@ -505,3 +505,45 @@ fn concurrent_runs_on_one_output_both_finish_with_a_whole_file() {
     let mut wb = open_workbook_auto(&report).expect("whole file");
     assert!(wb.worksheet_range("Results").is_ok());
 }
+
+#[test]
+fn a_monthly_rerun_rejects_only_rows_it_cannot_place_outside_its_month() {
+    // The messy sample's October faults (fill values, percent SSA, a duplicate) are counted
+    // outside a November run; rows whose time cannot be read are rejected in every period.
+    let dir = tempfile::tempdir().unwrap();
+    let job = samples().join("brinefell-monthly.toml");
+    let o = run(
+        &[
+            "check",
+            job.to_str().unwrap(),
+            "--json",
+            "--period",
+            "2026-11",
+        ],
+        dir.path(),
+    );
+    let doc: serde_json::Value = serde_json::from_slice(&o.stdout).expect("json");
+    let cells: Vec<&str> = doc["rejected"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|r| r["cell"].as_str().unwrap())
+        .collect();
+    for october in ["D10", "F15", "F38", "D52", "C58"] {
+        assert!(
+            !cells.contains(&october),
+            "{october} is an October row: {cells:?}"
+        );
+    }
+    assert!(
+        cells.contains(&"B47"),
+        "unreadable date is rejected: {cells:?}"
+    );
+    let c = &doc["counts"];
+    assert_eq!(
+        c["read"].as_u64().unwrap(),
+        c["computed"].as_u64().unwrap()
+            + c["rejected"].as_u64().unwrap()
+            + c["outside_period"].as_u64().unwrap()
+    );
+}

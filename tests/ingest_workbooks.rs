@@ -451,7 +451,12 @@ fn site_sheet_and_job_overrides() {
     });
     let ing = read_inputs(&s).unwrap();
     assert_reconciles(&ing);
-    assert_eq!((ing.counts.computed, ing.counts.outside_period), (2, 1), "{:?}", ing.rejected);
+    assert_eq!(
+        (ing.counts.computed, ing.counts.outside_period),
+        (2, 1),
+        "{:?}",
+        ing.rejected
+    );
     assert_eq!(ing.observations[0].surface, Surface::OceanTaylor1996);
     assert_eq!(
         ing.observations[1].surface,
@@ -806,4 +811,49 @@ fn several_files_concatenate_and_duplicates_across_files_name_the_first() {
         ing.rejected[0].reason
     );
     assert_eq!(ing.files.len(), 2);
+}
+
+#[test]
+fn ods_with_date_cells() {
+    let dir = tempfile::TempDir::new().unwrap();
+    let p = tmp(&dir, "obs.ods");
+    let rows = vec![
+        [
+            "site",
+            "time",
+            "lat",
+            "lon",
+            "AOD 500nm",
+            "SSA 550nm",
+            "g 550nm",
+        ]
+        .iter()
+        .map(|s| s.to_string())
+        .collect(),
+        vec![
+            "A".into(),
+            "=date:2024-05-01T10:30:00".into(),
+            "=num:1".into(),
+            "=num:2".into(),
+            "=num:0.1".into(),
+            "=num:0.9".into(),
+            "=num:0.7".into(),
+        ],
+        vec![
+            "A".into(),
+            "=date:2024-05-01T11:30:00".into(),
+            "=num:1".into(),
+            "=num:2".into(),
+            "=num:0.1".into(),
+            "=num:1.2".into(),
+            "=num:0.7".into(),
+        ],
+    ];
+    ingest_support::write_minimal_ods(&p, "optics", &rows);
+    let ing = read(&p);
+    assert_reconciles(&ing);
+    assert_eq!((ing.counts.computed, ing.counts.rejected), (1, 1));
+    assert_eq!(ing.observations[0].time_utc, utc(2024, 5, 1, 10, 30));
+    assert_eq!(ing.rejected[0].cell, "F3");
+    assert_eq!(ing.files[0].sheets, vec!["optics".to_string()]);
 }

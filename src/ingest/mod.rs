@@ -41,7 +41,6 @@ mod time;
 mod types;
 mod validate;
 
-use std::collections::BTreeMap;
 use std::path::Path;
 
 use polars::prelude::*;
@@ -450,31 +449,54 @@ fn build_frame(rows: &[read::Accepted]) -> PolarsResult<DataFrame> {
 
 /// The values as measured: one column per quantity and wavelength.
 fn spectral_columns(rows: &[read::Accepted]) -> Vec<Column> {
+    use rayon::prelude::*;
+    type Visit = fn(&read::Accepted, &mut dyn FnMut(f64, f64));
+    let quantities: [(&str, Visit); 3] = [
+        ("aod", |r, f| {
+            r.aod_measured.iter().for_each(|&(w, v)| f(w, v))
+        }),
+        ("ssa", |r, f| {
+            r.observation
+                .ssa
+                .iter()
+                .for_each(|s| f(s.wavelength_nm, s.value))
+        }),
+        ("asymmetry", |r, f| {
+            r.observation
+                .asymmetry
+                .iter()
+                .for_each(|s| f(s.wavelength_nm, s.value))
+        }),
+    ];
     let n = rows.len();
-    let mut cols = Vec::new();
-    // Measured spectral values, one column per quantity and wavelength.
-    let mut spectral: BTreeMap<(u8, i64), Vec<Option<f64>>> = BTreeMap::new();
-    for (i, r) in rows.iter().enumerate() {
-        let o = &r.observation;
-        let measured = r.aod_measured.iter().map(|&(w, v)| (0u8, w, v));
-        let ssa = o.ssa.iter().map(|s| (1u8, s.wavelength_nm, s.value));
-        let g = o.asymmetry.iter().map(|s| (2u8, s.wavelength_nm, s.value));
-        for (q, w, v) in measured.chain(ssa).chain(g) {
-            let col = spectral
-                .entry((q, (w * 10.0).round() as i64))
-                .or_insert_with(|| vec![None; n]);
-            col[i] = Some(v);
-        }
-    }
-    for ((q, w10), values) in spectral {
-        let name = format!(
-            "{}_{}nm",
-            ["aod", "ssa", "asymmetry"][q as usize],
-            format_wavelength(w10 as f64 / 10.0)
-        );
-        cols.push(Column::new(name.into(), values));
-    }
-    cols
+    let per_quantity: Vec<Vec<Column>> = quantities
+        .par_iter()
+        .map(|(name, visit)| {
+            // Few wavelengths per quantity: a linear search beats hashing.
+            let mut keys: Vec<i64> = Vec::new();
+            let mut values: Vec<Vec<Option<f64>>> = Vec::new();
+            for (i, r) in rows.iter().enumerate() {
+                visit(r, &mut |w, v| {
+                    let k = (w * 10.0).round() as i64;
+                    let j = keys.iter().position(|&x| x == k).unwrap_or_else(|| {
+                        keys.push(k);
+                        values.push(vec![None; n]);
+                        keys.len() - 1
+                    });
+                    values[j][i] = Some(v);
+                });
+            }
+            let mut cols: Vec<(i64, Vec<Option<f64>>)> = keys.into_iter().zip(values).collect();
+            cols.sort_by_key(|c| c.0);
+            cols.into_iter()
+                .map(|(k, v)| {
+                    let label = format!("{name}_{}nm", format_wavelength(k as f64 / 10.0));
+                    Column::new(label.into(), v)
+                })
+                .collect()
+        })
+        .collect();
+    per_quantity.into_iter().flatten().collect()
 }
 
 fn at_550(values: &[crate::physics::SpectralValue]) -> f64 {

@@ -774,8 +774,61 @@ pub(crate) fn read_rows(ctx: &SheetContext<'_>, rows: &mut Rows) {
     }
 }
 
+/// With a period selected, whether the row's time can be read and lies outside the period
+/// whatever the offset of its clock: more than 14 h (the largest UTC offset in use) beyond
+/// the period when the time carries no offset. Such a row is counted outside the period, not
+/// rejected for faults in cells that a run of this period would never use — so a monthly
+/// rerun lists only its own month's bad rows.
+fn clearly_outside_period(ctx: &SheetContext<'_>, r: usize) -> bool {
+    let Some(p) = &ctx.spec.period else {
+        return false;
+    };
+    let (grid, fill) = (ctx.grid, ctx.fill);
+    let (mut time, mut date, mut time_of_day) = (None, None, None);
+    for m in &ctx.layout.columns {
+        match m.kind {
+            Kind::Time => {
+                let cell = grid.cell(r, m.col);
+                if ctx.layout.split_date_time {
+                    match read_time_of_day(&cell, ctx.is_1904, fill) {
+                        Ok(t) => time_of_day = t,
+                        Err(Some(TimeRead::Value(pt))) => time = Some(pt),
+                        Err(_) => return false,
+                    }
+                } else if let TimeRead::Value(pt) = read_time(&cell, ctx.is_1904, fill) {
+                    time = Some(pt);
+                } else {
+                    return false;
+                }
+            }
+            Kind::Date => match read_date(&grid.cell(r, m.col), ctx.is_1904, fill) {
+                TimeRead::Value(pt) => date = Some(pt),
+                _ => return false,
+            },
+            _ => {}
+        }
+    }
+    let parsed = match (time, date, time_of_day) {
+        (Some(pt), _, _) => pt,
+        (None, Some(d), Some((secs, off))) => combine(d, secs, off),
+        _ => return false,
+    };
+    let (t, slack) = match parsed.offset_minutes {
+        Some(min) => (
+            parsed.naive - TimeDelta::minutes(i64::from(min)),
+            TimeDelta::zero(),
+        ),
+        None => (parsed.naive, TimeDelta::hours(14)),
+    };
+    let t = t.and_utc();
+    t + slack < p.start || t - slack >= p.end
+}
+
 /// Read, check and resolve one row. `Ok(None)`: outside the selected period.
 fn read_row(ctx: &SheetContext<'_>, r: usize) -> Result<Option<Accepted>, Problem> {
+    if clearly_outside_period(ctx, r) {
+        return Ok(None);
+    }
     let grid = ctx.grid;
     let fill = ctx.fill;
     let mut v = RowValues::default();
@@ -972,7 +1025,10 @@ fn read_row(ctx: &SheetContext<'_>, r: usize) -> Result<Option<Accepted>, Proble
     };
     let entry = ctx.sites.get(&site_name);
     // The site table's spelling names the site (` beta` and `Beta` are one site).
-    let site_name = entry.map_or(site_name, |e| e.name.clone());
+    let site_name = match entry {
+        Some(e) if e.name != site_name => e.name.clone(),
+        _ => site_name,
+    };
     fn from_site(
         assumptions: &mut Vec<(&'static str, Val, ValueSource)>,
         site: &Arc<str>,
@@ -1189,7 +1245,7 @@ fn read_row(ctx: &SheetContext<'_>, r: usize) -> Result<Option<Accepted>, Proble
         return Ok(None);
     }
     // Aerosol spectral quantities.
-    let mut aod = v.aod.clone();
+    let mut aod = std::mem::take(&mut v.aod);
     aod.sort_by(|a, b| a.0.total_cmp(&b.0));
     let (aod_wavelength_nm, aod_ref) = *aod
         .iter()

@@ -110,7 +110,7 @@ pub struct InputSpec {
 }
 
 /// Where a row came from.
-#[derive(Debug, Clone, PartialEq, Eq, serde::Serialize)]
+#[derive(Debug, Clone, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
 pub struct RowOrigin {
     /// File name as given.
     pub file: String,
@@ -121,7 +121,7 @@ pub struct RowOrigin {
 }
 
 /// A row that could not be computed.
-#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct Rejection {
     pub file: String,
     pub sheet: String,
@@ -137,20 +137,21 @@ pub struct Rejection {
 }
 
 /// A warning that does not stop a row from being computed.
-#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct RowWarning {
     pub cell: String,
     pub message: String,
 }
 
 /// How one input column was understood.
-#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct MappedColumn {
     pub file: String,
     pub sheet: String,
     /// Canonical quantity, e.g. `aod`, `ssa`, `asymmetry`, `time`, `site`.
     pub quantity: String,
     /// Wavelength read from the header [nm], if any.
+    #[serde(with = "crate::physics::serde_float::opt_float")]
     pub wavelength_nm: Option<f64>,
     /// Header text as found.
     pub header: String,
@@ -163,7 +164,7 @@ pub struct MappedColumn {
 }
 
 /// Where an assumed value came from.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, serde::Serialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, serde::Serialize, serde::Deserialize)]
 #[serde(rename_all = "kebab-case")]
 pub enum ValueSource {
     Workbook,
@@ -173,7 +174,7 @@ pub enum ValueSource {
 }
 
 /// A default or assumption that applied to some rows.
-#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct Assumption {
     pub quantity: String,
     pub value: String,
@@ -183,7 +184,7 @@ pub struct Assumption {
 }
 
 /// An input file that was read.
-#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct InputFile {
     pub path: String,
     /// Lower-case hex SHA-256 of the file's bytes.
@@ -192,7 +193,7 @@ pub struct InputFile {
 }
 
 /// Row accounting: `read == computed + rejected + outside_period`.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, serde::Serialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, serde::Serialize, serde::Deserialize)]
 pub struct Counts {
     pub read: usize,
     pub computed: usize,

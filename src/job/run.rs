@@ -9,6 +9,7 @@ use polars::prelude::{BooleanChunked, NewChunkedArray};
 
 use super::log::Log;
 use super::output::{FolderLock, NameTokens, expand_name, overwrites_input};
+use super::partial;
 use super::plan::{self, Overrides, Plan};
 use super::summary;
 use crate::cli::{RunArgs, Status};
@@ -55,7 +56,7 @@ fn run_inner(a: &RunArgs, log: &Log) -> anyhow::Result<Status> {
     }
 
     let t = Instant::now();
-    let ing = ingest::read_inputs(&plan.spec)?;
+    let mut ing = ingest::read_inputs(&plan.spec)?;
     let t_read = t.elapsed().as_secs_f64();
     for l in summary::understanding(&ing) {
         log.info(&l);
@@ -85,6 +86,11 @@ fn run_inner(a: &RunArgs, log: &Log) -> anyhow::Result<Status> {
             ing.counts.read
         );
     }
+    let outside_site = if a.sites.is_empty() {
+        0
+    } else {
+        filter_sites(&mut ing, &a.sites, log)?
+    };
 
     let t = Instant::now();
     let results = compute(&ing, &plan, log);
@@ -106,6 +112,9 @@ fn run_inner(a: &RunArgs, log: &Log) -> anyhow::Result<Status> {
         period: plan.period.as_ref().map(|p| p.label.clone()),
         date: plan.today.format("%Y-%m-%d").to_string(),
     };
+    let site_label = (!a.sites.is_empty()).then(|| a.sites.join("+"));
+    let pattern = output_pattern(&plan.output_pattern, site_label.is_some());
+    // One report per site only when the output name asks for it.
     let per_site = plan.output_pattern.contains("{site}");
     let groups: Vec<(Option<String>, Vec<bool>)> = if per_site {
         let mut names: Vec<String> = ing.sites.clone();
@@ -127,9 +136,9 @@ fn run_inner(a: &RunArgs, log: &Log) -> anyhow::Result<Status> {
     let mut written: Vec<PathBuf> = Vec::new();
     for (site, mask) in groups {
         let name = expand_name(
-            &plan.output_pattern,
+            &pattern,
             &NameTokens {
-                site: site.clone(),
+                site: site.clone().or_else(|| site_label.clone()),
                 ..tokens.clone()
             },
         )
@@ -154,7 +163,7 @@ fn run_inner(a: &RunArgs, log: &Log) -> anyhow::Result<Status> {
             template_name: plan.template.clone(),
             period: plan.period.as_ref().map(|p| p.label.clone()),
             created_utc: created,
-            notes: notes(&plan, site.as_deref()),
+            notes: notes(&plan, site.as_deref(), &a.sites),
         };
         let input = ReportInput {
             ingested: &sub_ing,
@@ -178,6 +187,29 @@ fn run_inner(a: &RunArgs, log: &Log) -> anyhow::Result<Status> {
             t_stats += t.elapsed().as_secs_f64();
             written.push(side);
         }
+    }
+    if a.partial {
+        let name = expand_name(
+            &pattern,
+            &NameTokens {
+                site: site_label.clone(),
+                ..tokens.clone()
+            },
+        )
+        .map_err(anyhow::Error::msg)?;
+        let path = plan.out_dir.join(name).with_extension("partial.json");
+        if let Some(input) = overwrites_input(&path, &plan.spec.paths) {
+            bail!(
+                "{}: the partial results would overwrite the input {}; choose another --out folder",
+                path.display(),
+                input.display()
+            );
+        }
+        let t = Instant::now();
+        let bundle = bundle(&plan, &ing, &results, &a.sites, outside_site);
+        partial::write(&path, &bundle)?;
+        t_write += t.elapsed().as_secs_f64();
+        written.push(path);
     }
     for p in &written {
         println!("{}", p.display());
@@ -255,7 +287,7 @@ fn subset(
 
 /// Document creation time: `SOURCE_DATE_EPOCH` if set, else the latest observation time, so
 /// the same inputs give the same bytes.
-fn created_time(ing: &Ingested) -> DateTime<Utc> {
+pub(super) fn created_time(ing: &Ingested) -> DateTime<Utc> {
     if let Some(secs) = std::env::var("SOURCE_DATE_EPOCH")
         .ok()
         .and_then(|s| s.trim().parse::<i64>().ok())
@@ -274,7 +306,109 @@ fn created_time(ing: &Ingested) -> DateTime<Utc> {
         })
 }
 
-fn notes(plan: &Plan, site: Option<&str>) -> Vec<String> {
+/// With a site filter, the output name carries the sites: `{site}` if the pattern has it, else
+/// `-{site}` before the extension, so the partitions of one job do not overwrite each other.
+fn output_pattern(pattern: &str, site_filter: bool) -> String {
+    if !site_filter || pattern.contains("{site}") {
+        return pattern.to_string();
+    }
+    match pattern.rfind('.') {
+        Some(dot) if dot > 0 => format!("{}-{{site}}{}", &pattern[..dot], &pattern[dot..]),
+        _ => format!("{pattern}-{{site}}"),
+    }
+}
+
+/// Keep only the rows of `sites`; the others are counted as outside the period. Rejected rows
+/// stay (their site may be the fault). Returns the number of rows left out.
+///
+/// Errors: no row of any of the sites and no rejected row (nothing to report).
+fn filter_sites(ing: &mut Ingested, sites: &[String], log: &Log) -> anyhow::Result<usize> {
+    let mut known: Vec<&str> = ing.sites.iter().map(String::as_str).collect();
+    known.sort_unstable();
+    known.dedup();
+    let known_text = known.join(", ");
+    let missing: Vec<&str> = sites
+        .iter()
+        .map(String::as_str)
+        .filter(|s| !known.contains(s))
+        .collect();
+    let mask: Vec<bool> = ing.sites.iter().map(|s| sites.contains(s)).collect();
+    let kept = mask.iter().filter(|m| **m).count();
+    if kept == 0 && ing.rejected.is_empty() {
+        bail!(
+            "--site {}: no computed row of {} among the rows read (and in the period, if one is given); sites found: {known_text}. Check the spelling; nothing written.",
+            sites.join(","),
+            if sites.len() == 1 {
+                "this site"
+            } else {
+                "these sites"
+            },
+        );
+    }
+    for m in &missing {
+        log.warn(&format!(
+            "--site {m}: no computed row of this site; sites found: {known_text}"
+        ));
+    }
+    let removed = ing.sites.len() - kept;
+    let (sub, _) = subset(ing, &[], &mask)?;
+    *ing = sub;
+    ing.counts.outside_period += removed;
+    log.info(&format!(
+        "site filter {}: {kept} rows kept, {removed} rows of other sites counted as outside",
+        sites.join(", ")
+    ));
+    Ok(removed)
+}
+
+/// The partial results of this run, for `hazebook merge`.
+fn bundle(
+    plan: &Plan,
+    ing: &Ingested,
+    results: &[ObservationResult],
+    sites: &[String],
+    outside_site: usize,
+) -> partial::Bundle {
+    let rows = (0..results.len())
+        .map(|i| partial::BundleRow {
+            site: ing.sites[i].clone(),
+            origin: ing.origins[i].clone(),
+            observation: ing.observations[i].clone(),
+            warnings: ing.row_warnings.get(i).cloned().unwrap_or_default(),
+            result: results[i],
+        })
+        .collect();
+    partial::Bundle {
+        format: partial::FORMAT.into(),
+        format_version: partial::FORMAT_VERSION,
+        hazebook_version: env!("CARGO_PKG_VERSION").into(),
+        job_name: plan.job_name.clone(),
+        job_file: plan.job.as_ref().map(|j| j.path.display().to_string()),
+        job_text: plan.job.as_ref().map(|j| j.text.clone()),
+        period: plan.period.as_ref().map(Into::into),
+        sites: sites.to_vec(),
+        settings: plan.settings.clone(),
+        template: plan.template.clone(),
+        rows,
+        rejected: ing.rejected.clone(),
+        warnings: ing.warnings.clone(),
+        files: ing.files.clone(),
+        mapping: ing.mapping.clone(),
+        assumptions: ing.assumptions.clone(),
+        counts: ing.counts,
+        outside_site,
+    }
+}
+
+/// The About note of a site filter.
+pub(super) fn site_filter_note(sites: &[String]) -> String {
+    format!(
+        "Site filter: {} (rows of other sites are counted as outside the period; rejected rows of every site are listed; assumption row counts cover every site read)",
+        sites.join(", ")
+    )
+}
+
+fn notes(plan: &Plan, site: Option<&str>, sites: &[String]) -> Vec<String> {
     let mut v = Vec::new();
     match &plan.job {
         Some(j) => v.push(format!("Job file: {}", j.path.display())),
@@ -287,6 +421,9 @@ fn notes(plan: &Plan, site: Option<&str>) -> Vec<String> {
             p.start.format("%Y-%m-%d"),
             p.end.format("%Y-%m-%d")
         ));
+    }
+    if !sites.is_empty() {
+        v.push(site_filter_note(sites));
     }
     if let Some(s) = site {
         v.push(format!(

@@ -85,7 +85,7 @@ pub fn rejected_lines(ing: &Ingested, limit: usize) -> Vec<String> {
             } else {
                 format!("cell {}", r.cell)
             };
-            let value = if r.value.is_empty() {
+            let value = if r.value.is_empty() || r.reason.contains(r.value.as_str()) {
                 String::new()
             } else {
                 format!(" (found {:?})", r.value)

@@ -29,9 +29,14 @@
 //! shared by the columns with and without aerosol; only the aerosol layer is solved twice.
 //! Everything that does not depend on the sun (band irradiances, Rayleigh depths, aerosol
 //! optics per band, the vertical split, the diffuse albedo) is prepared once per
-//! observation; per sun position the layers of all bands are solved side by side
+//! observation; per sun position the gas depths of all bands come from one look-up of the
+//! paths ([`super::gases::GasPaths`]), the layers of all bands — upper, aerosol layer with
+//! and without aerosol, lower — are solved side by side in one batch
 //! ([`super::two_stream::solve_batch`]) and added side by side
-//! ([`super::column::add_batch`]).
+//! ([`super::column::add_slices`]). Work arrays are kept per thread and reused, so an
+//! observation allocates nothing once the first one has run; the loops over bands are
+//! compiled for AVX-512 or AVX2 where the CPU has them (the same bits: no operation is
+//! fused or reordered).
 //! The aerosol-free column goes through exactly the same arithmetic with τ_a = 0, so an AOD
 //! of 0 gives a DRE of exactly 0.
 //!
@@ -57,10 +62,10 @@
 //! pressure thickness of the aerosol layer.
 
 use super::aerosol::{aerosol_optics, aod_at_wavelength};
-use super::column::{ColumnBatch, add_batch};
+use super::column::{ColumnBatch, add_slices};
 use super::diurnal::day_geometry;
 use super::diurnal::spencer_distance_factor;
-use super::gases::{GasDepths, band_gas_optical_depths, ozone_airmass_bird_riordan1986};
+use super::gases::{GasDepths, GasPaths, ozone_airmass_bird_riordan1986};
 use super::rayleigh::{
     STANDARD_PRESSURE_HPA, band_rayleigh_optical_depth, pressure_from_altitude_hpa,
     rayleigh_optical_depth_bodhaine1999,
@@ -68,7 +73,7 @@ use super::rayleigh::{
 use super::solar::{relative_airmass_kasten_young1989, solar_zenith_deg};
 use super::spectrum::{astm_g173_bands, scaled_band_irradiance};
 use super::surface::surface_albedo;
-use super::two_stream::{LayerOptics, ResponseBatch, exp_nonpositive, solve_batch};
+use super::two_stream::{LayerOptics, ResponseBatch, beam_transmission_batch, solve_batch};
 use super::{BandSet, Effect, Flags, Fluxes, Observation, ObservationResult, Settings, Surface};
 use chrono::Datelike;
 use rayon::prelude::*;
@@ -178,12 +183,14 @@ struct Sums {
 }
 
 impl Sums {
-    fn add(&mut self, incident: f64, f: &ColumnBatch, i: usize) {
+    /// Adds one band's fluxes (fractions of `incident`).
+    #[inline]
+    fn add(&mut self, incident: f64, toa_up: f64, dir: f64, dif: f64, sfc_up: f64) {
         self.toa_down += incident;
-        self.toa_up += incident * f.toa_up[i];
-        self.dir += incident * f.sfc_down_direct[i];
-        self.dif += incident * f.sfc_down_diffuse[i];
-        self.sfc_up += incident * f.sfc_up[i];
+        self.toa_up += incident * toa_up;
+        self.dir += incident * dir;
+        self.dif += incident * dif;
+        self.sfc_up += incident * sfc_up;
     }
 
     fn fluxes(&self) -> Fluxes {
@@ -299,7 +306,13 @@ fn split(obs: &Observation, pressure_hpa: f64) -> Split {
     }
 }
 
-fn prepare(obs: &Observation, settings: &Settings, ctx: &Context) -> Prepared {
+/// `bands` is a buffer to reuse (its contents are replaced).
+fn prepare(
+    obs: &Observation,
+    settings: &Settings,
+    ctx: &Context,
+    mut bands: Vec<BandInput>,
+) -> Prepared {
     let pressure_hpa = match obs.pressure_hpa {
         Some(p) if p.is_finite() && p > 0.0 => p,
         _ => pressure_from_altitude_hpa(obs.altitude_m),
@@ -325,42 +338,44 @@ fn prepare(obs: &Observation, settings: &Settings, ctx: &Context) -> Prepared {
     };
     // The band layout is the context's (built from the same settings in normal use); zipped
     // rather than indexed so that a mismatched context cannot panic.
-    let bands = match ctx.band_set {
-        BandSet::AstmG173 => ctx
-            .irradiance_wm2
-            .iter()
-            .zip(&ctx.rayleigh_standard)
-            .zip(&ctx.center_um)
-            .enumerate()
-            .map(|(i, ((&irradiance, &rayleigh), &center_um))| BandInput {
-                irradiance,
-                tau_rayleigh: if settings.rayleigh {
-                    rayleigh * pressure_hpa / STANDARD_PRESSURE_HPA
-                } else {
-                    0.0
-                },
-                aerosol: optics_at(center_um, &mut flags),
-                gas_band: Some(i),
-            })
-            .collect(),
-        BandSet::Single => {
-            let wavelength_um = obs.aod_wavelength_nm / 1000.0;
+    bands.clear();
+    match ctx.band_set {
+        BandSet::AstmG173 => bands.extend(
             ctx.irradiance_wm2
                 .iter()
-                .take(1)
-                .map(|&irradiance| BandInput {
+                .zip(&ctx.rayleigh_standard)
+                .zip(&ctx.center_um)
+                .enumerate()
+                .map(|(i, ((&irradiance, &rayleigh), &center_um))| BandInput {
                     irradiance,
                     tau_rayleigh: if settings.rayleigh {
-                        rayleigh_optical_depth_bodhaine1999(wavelength_um, pressure_hpa)
+                        rayleigh * pressure_hpa / STANDARD_PRESSURE_HPA
                     } else {
                         0.0
                     },
-                    aerosol: optics_at(wavelength_um, &mut flags),
-                    gas_band: None,
-                })
-                .collect()
+                    aerosol: optics_at(center_um, &mut flags),
+                    gas_band: Some(i),
+                }),
+        ),
+        BandSet::Single => {
+            let wavelength_um = obs.aod_wavelength_nm / 1000.0;
+            bands.extend(
+                ctx.irradiance_wm2
+                    .iter()
+                    .take(1)
+                    .map(|&irradiance| BandInput {
+                        irradiance,
+                        tau_rayleigh: if settings.rayleigh {
+                            rayleigh_optical_depth_bodhaine1999(wavelength_um, pressure_hpa)
+                        } else {
+                            0.0
+                        },
+                        aerosol: optics_at(wavelength_um, &mut flags),
+                        gas_band: None,
+                    }),
+            );
         }
-    };
+    }
     Prepared {
         bands,
         split: split(obs, pressure_hpa),
@@ -373,29 +388,95 @@ fn prepare(obs: &Observation, settings: &Settings, ctx: &Context) -> Prepared {
     }
 }
 
-/// Per-band work arrays of one evaluation, reused across sun positions.
+/// Per-band work arrays of one evaluation, reused across sun positions and observations.
 #[derive(Default)]
 struct Scratch {
-    upper: Vec<LayerOptics>,
-    with: Vec<LayerOptics>,
-    without: Vec<LayerOptics>,
-    lower: Vec<LayerOptics>,
-    upper_r: ResponseBatch,
-    with_r: ResponseBatch,
-    without_r: ResponseBatch,
-    lower_r: ResponseBatch,
+    /// The layers of all bands at one sun position, solved in one batch: the upper layers,
+    /// then the aerosol layers with aerosol, then without, then (elevated aerosol only) the
+    /// lower layers, `n` bands each.
+    layers: Vec<LayerOptics>,
+    responses: ResponseBatch,
+    /// Optical depths of the aerosol layers with aerosol, for their unscaled beam.
+    tau_aerosol: Vec<f64>,
     direct_clean: Vec<f64>,
     direct_aerosol: Vec<f64>,
     clean: ColumnBatch,
     aerosol: ColumnBatch,
+    /// Band inputs of the observation ([`Prepared::bands`], lent while it is computed).
+    bands: Vec<BandInput>,
+    /// Sun positions of the 24-hour mean.
+    suns: Vec<(f64, f64)>,
+    /// Gas depths of all bands at one sun position (ozone, water vapour, mixed gases).
+    gas: [Vec<f64>; 3],
+}
+
+/// Layer of Rayleigh scattering and gas absorption only: [`mix`] with no aerosol, with the
+/// same bits (its g is 0 and its ω is τ_R/τ).
+#[inline]
+fn mix_clear(tau_rayleigh: f64, tau_gas: f64) -> LayerOptics {
+    // The `+ 0.0` are the aerosol terms of `mix` (they turn −0 into +0, nothing else).
+    let tau = tau_rayleigh + tau_gas + 0.0;
+    let scattering = tau_rayleigh + 0.0;
+    LayerOptics {
+        tau,
+        ssa: if tau > 0.0 { scattering / tau } else { 0.0 },
+        g: 0.0,
+    }
 }
 
 /// Fluxes with and without aerosol for a set of sun positions, each (μ0, weight), weight the
 /// incident-flux factor (fraction of the day × distance factor, or the distance factor).
 ///
-/// For each sun position the layers of all bands are built first and then solved side by
-/// side ([`solve_batch`]); the upper (and lower) layers are shared by both columns.
+/// For each sun position the layers of all bands — upper, aerosol layer with and without
+/// aerosol, lower — are built first and then solved side by side in one batch
+/// ([`solve_batch`]); the upper (and lower) layers are shared by both columns.
 fn evaluate(
+    prep: &Prepared,
+    settings: &Settings,
+    suns: &[(f64, f64)],
+    w: &mut Scratch,
+) -> (Fluxes, Fluxes) {
+    #[cfg(target_arch = "x86_64")]
+    {
+        if std::arch::is_x86_feature_detected!("avx512f") {
+            // SAFETY: the CPU supports AVX-512F (checked just above), the only requirement.
+            // Same IEEE operations in the same order (no FMA contraction): the same bits.
+            return unsafe { evaluate_avx512(prep, settings, suns, w) };
+        }
+        if std::arch::is_x86_feature_detected!("avx2") {
+            // SAFETY: as above, for AVX2.
+            return unsafe { evaluate_avx2(prep, settings, suns, w) };
+        }
+    }
+    evaluate_any(prep, settings, suns, w)
+}
+
+/// [`evaluate`] compiled for AVX-512 (its per-band loops vectorise eight wide).
+#[cfg(target_arch = "x86_64")]
+#[target_feature(enable = "avx512f")]
+fn evaluate_avx512(
+    prep: &Prepared,
+    settings: &Settings,
+    suns: &[(f64, f64)],
+    w: &mut Scratch,
+) -> (Fluxes, Fluxes) {
+    evaluate_any(prep, settings, suns, w)
+}
+
+/// [`evaluate`] compiled for AVX2.
+#[cfg(target_arch = "x86_64")]
+#[target_feature(enable = "avx2")]
+fn evaluate_avx2(
+    prep: &Prepared,
+    settings: &Settings,
+    suns: &[(f64, f64)],
+    w: &mut Scratch,
+) -> (Fluxes, Fluxes) {
+    evaluate_any(prep, settings, suns, w)
+}
+
+#[inline(always)]
+fn evaluate_any(
     prep: &Prepared,
     settings: &Settings,
     suns: &[(f64, f64)],
@@ -403,9 +484,10 @@ fn evaluate(
 ) -> (Fluxes, Fluxes) {
     let mut clean = Sums::default();
     let mut aerosol = Sums::default();
+    let n = prep.bands.len();
     let closure = settings.closure;
     let s = prep.split;
-    let none = LayerOptics::default();
+    let stack = if s.elevated { 4 } else { 3 };
     for &(mu0, weight) in suns {
         if mu0.is_nan() || mu0 <= 0.0 {
             continue;
@@ -420,88 +502,122 @@ fn evaluate(
             prep.ozone_du * ozone_airmass_bird_riordan1986(zenith_deg) / airmass;
         let slant_scale = airmass * mu0;
         let albedo_direct = surface_albedo(&prep.surface, mu0);
-        w.upper.clear();
-        w.with.clear();
-        w.without.clear();
-        w.lower.clear();
-        for band in &prep.bands {
-            let gas = match band.gas_band {
-                Some(i) if settings.gases => {
-                    let d = band_gas_optical_depths(
-                        i,
-                        ozone_equivalent_du,
-                        prep.water_cm,
-                        prep.pressure_hpa,
-                        airmass,
-                    );
-                    GasDepths {
-                        ozone: d.ozone * slant_scale,
-                        water: d.water * slant_scale,
-                        mixed: d.mixed * slant_scale,
-                    }
+        // The paths are the same in every band: located on the gas tables once.
+        let paths = GasPaths::new(
+            ozone_equivalent_du,
+            prep.water_cm,
+            prep.pressure_hpa,
+            airmass,
+        );
+        // Vertical gas depths of every band before the slant rescaling: in table order (the
+        // G173 set) all bands in one pass, otherwise band by band (none for the idealised
+        // band or with gases off).
+        let all_bands = settings.gases && {
+            let [o, wv, m] = &mut w.gas;
+            paths.depths_all(o, wv, m);
+            o.len() == n
+                && prep
+                    .bands
+                    .iter()
+                    .enumerate()
+                    .all(|(i, b)| b.gas_band == Some(i))
+        };
+        if !all_bands {
+            for g in &mut w.gas {
+                g.clear();
+                g.resize(n, 0.0);
+            }
+            for (i, band) in prep.bands.iter().enumerate() {
+                if let Some(b) = band.gas_band
+                    && settings.gases
+                {
+                    let d = paths.depths(b);
+                    (w.gas[0][i], w.gas[1][i], w.gas[2][i]) = (d.ozone, d.water, d.mixed);
                 }
-                _ => GasDepths::default(),
-            };
-            let tr = band.tau_rayleigh;
-            w.upper
-                .push(mix(tr * s.upper, gas.ozone + gas.mixed * s.upper, none));
-            let gas_aerosol_layer = gas.water * s.water_aerosol + gas.mixed * s.aerosol;
-            w.with
-                .push(mix(tr * s.aerosol, gas_aerosol_layer, band.aerosol));
-            w.without.push(mix(tr * s.aerosol, gas_aerosol_layer, none));
-            if s.elevated {
-                let gas_lower = gas.water * s.water_lower + gas.mixed * s.lower;
-                w.lower.push(mix(tr * s.lower, gas_lower, none));
             }
         }
-        solve_batch(&w.upper, mu0, closure, &mut w.upper_r);
-        solve_batch(&w.with, mu0, closure, &mut w.with_r);
-        solve_batch(&w.without, mu0, closure, &mut w.without_r);
-        if s.elevated {
-            solve_batch(&w.lower, mu0, closure, &mut w.lower_r);
+        // The layers without aerosol (upper, aerosol layer without it, lower) first, then the
+        // aerosol layers with it, so that the solver meets long runs of layers of one kind.
+        // Every entry is written below (the lower layers only exist for an elevated
+        // aerosol), so the buffers are only resized, not cleared.
+        w.layers.resize(stack * n, LayerOptics::default());
+        w.tau_aerosol.resize(n, 0.0);
+        {
+            let (upper, rest) = w.layers.split_at_mut(n);
+            let (without, rest) = rest.split_at_mut(n);
+            let (lower, with) = rest.split_at_mut(rest.len() - n);
+            let (go, gw, gm) = (&w.gas[0][..n], &w.gas[1][..n], &w.gas[2][..n]);
+            let (upper, without, with) = (&mut upper[..n], &mut without[..n], &mut with[..n]);
+            let tau_aerosol = &mut w.tau_aerosol[..n];
+            for (i, band) in prep.bands.iter().enumerate().take(n) {
+                let gas = GasDepths {
+                    ozone: go[i] * slant_scale,
+                    water: gw[i] * slant_scale,
+                    mixed: gm[i] * slant_scale,
+                };
+                let tr = band.tau_rayleigh;
+                upper[i] = mix_clear(tr * s.upper, gas.ozone + gas.mixed * s.upper);
+                let gas_aerosol_layer = gas.water * s.water_aerosol + gas.mixed * s.aerosol;
+                with[i] = mix(tr * s.aerosol, gas_aerosol_layer, band.aerosol);
+                tau_aerosol[i] = with[i].tau;
+                without[i] = mix_clear(tr * s.aerosol, gas_aerosol_layer);
+                if let Some(l) = lower.get_mut(i) {
+                    let gas_lower = gas.water * s.water_lower + gas.mixed * s.lower;
+                    *l = mix_clear(tr * s.lower, gas_lower);
+                }
+            }
         }
+        solve_batch(&w.layers, mu0, closure, &mut w.responses);
+        let r = &w.responses;
+        let upper_r = r.slices(0..n);
+        let without_r = r.slices(n..2 * n);
+        let with_r = r.slices((stack - 1) * n..stack * n);
         // Layers without aerosol have g = 0, so their delta-scaled beam transmission is the
         // unscaled one; only the aerosol layer needs e^(−τ/μ0) of its own.
-        let n = prep.bands.len();
+        beam_transmission_batch(&w.tau_aerosol, mu0, &mut w.direct_aerosol);
         w.direct_clean.clear();
-        w.direct_aerosol.clear();
-        w.direct_clean.extend_from_slice(&w.without_r.tb[..n]);
-        w.direct_aerosol
-            .extend(w.with.iter().map(|l| exp_nonpositive(-l.tau / mu0)));
-        for i in 0..n {
-            let mut above = w.upper_r.tb[i];
-            if s.elevated {
-                above *= w.lower_r.tb[i];
-            }
-            w.direct_clean[i] *= above;
-            w.direct_aerosol[i] *= above;
-        }
+        w.direct_clean.extend_from_slice(without_r.tb);
         let (ad, af) = (albedo_direct, prep.albedo_diffuse);
+        let direct_clean = &mut w.direct_clean[..n];
+        let direct_aerosol = &mut w.direct_aerosol[..n];
+        let upper_tb = &upper_r.tb[..n];
         if s.elevated {
-            let (u, m, l) = (&w.upper_r, &w.without_r, &w.lower_r);
-            add_batch([u, m, l], &w.direct_clean, ad, af, &mut w.clean);
-            let m = &w.with_r;
-            add_batch([u, m, l], &w.direct_aerosol, ad, af, &mut w.aerosol);
+            let lower_r = r.slices(2 * n..3 * n);
+            let lower_tb = &lower_r.tb[..n];
+            for i in 0..n {
+                let above = upper_tb[i] * lower_tb[i];
+                direct_clean[i] *= above;
+                direct_aerosol[i] *= above;
+            }
+            let (u, l) = (upper_r, lower_r);
+            add_slices([u, without_r, l], direct_clean, ad, af, &mut w.clean);
+            add_slices([u, with_r, l], direct_aerosol, ad, af, &mut w.aerosol);
         } else {
-            add_batch(
-                [&w.upper_r, &w.without_r],
-                &w.direct_clean,
-                ad,
-                af,
-                &mut w.clean,
-            );
-            add_batch(
-                [&w.upper_r, &w.with_r],
-                &w.direct_aerosol,
-                ad,
-                af,
-                &mut w.aerosol,
-            );
+            for i in 0..n {
+                let above = upper_tb[i];
+                direct_clean[i] *= above;
+                direct_aerosol[i] *= above;
+            }
+            add_slices([upper_r, without_r], direct_clean, ad, af, &mut w.clean);
+            add_slices([upper_r, with_r], direct_aerosol, ad, af, &mut w.aerosol);
         }
-        for (i, band) in prep.bands.iter().enumerate() {
+        let (c, a) = (&w.clean, &w.aerosol);
+        let (c_up, c_dir, c_dif, c_sfc) = (
+            &c.toa_up[..n],
+            &c.sfc_down_direct[..n],
+            &c.sfc_down_diffuse[..n],
+            &c.sfc_up[..n],
+        );
+        let (a_up, a_dir, a_dif, a_sfc) = (
+            &a.toa_up[..n],
+            &a.sfc_down_direct[..n],
+            &a.sfc_down_diffuse[..n],
+            &a.sfc_up[..n],
+        );
+        for (i, band) in prep.bands.iter().enumerate().take(n) {
             let incident = band.irradiance * mu0 * weight;
-            clean.add(incident, &w.clean, i);
-            aerosol.add(incident, &w.aerosol, i);
+            clean.add(incident, c_up[i], c_dir[i], c_dif[i], c_sfc[i]);
+            aerosol.add(incident, a_up[i], a_dir[i], a_dif[i], a_sfc[i]);
         }
     }
     (clean.fluxes(), aerosol.fluxes())
@@ -554,7 +670,13 @@ pub fn compute_observation(
     settings: &Settings,
     ctx: &Context,
 ) -> ObservationResult {
-    compute_with(obs, settings, ctx, &mut Scratch::default())
+    thread_local! {
+        static SCRATCH: std::cell::RefCell<Scratch> = std::cell::RefCell::new(Scratch::default());
+    }
+    SCRATCH.with(|cell| match cell.try_borrow_mut() {
+        Ok(mut scratch) => compute_with(obs, settings, ctx, &mut scratch),
+        Err(_) => compute_with(obs, settings, ctx, &mut Scratch::default()),
+    })
 }
 
 /// [`compute_observation`] with work arrays that the caller reuses across observations.
@@ -564,7 +686,7 @@ fn compute_with(
     ctx: &Context,
     scratch: &mut Scratch,
 ) -> ObservationResult {
-    let prep = prepare(obs, settings, ctx);
+    let prep = prepare(obs, settings, ctx, std::mem::take(&mut scratch.bands));
     let mut flags = prep.flags;
     let aod_550 = aod_at_wavelength(obs.aod, obs.aod_wavelength_nm, obs.angstrom, 550.0);
     let dp = prep.split.delta_p_pa;
@@ -616,21 +738,26 @@ fn compute_with(
         } else {
             1.0
         };
-        let suns: Vec<(f64, f64)> = day
-            .cos_zenith
-            .iter()
-            .zip(&day.weights)
-            .map(|(&mu, &w)| (mu, w * distance))
-            .collect();
+        let mut suns = std::mem::take(&mut scratch.suns);
+        suns.clear();
+        suns.extend(
+            day.cos_zenith
+                .iter()
+                .zip(&day.weights)
+                .map(|(&mu, &w)| (mu, w * distance)),
+        );
         let (c, a) = evaluate(&prep, settings, &suns, scratch);
+        scratch.suns = suns;
         effect(c, a, aod_550, dp)
     } else {
         Effect::default()
     };
 
+    let pressure_hpa = prep.pressure_hpa;
+    scratch.bands = prep.bands;
     ObservationResult {
         aod_550,
-        pressure_hpa: prep.pressure_hpa,
+        pressure_hpa,
         solar_zenith_deg: zenith_deg,
         instantaneous,
         daily,

@@ -28,7 +28,9 @@
 //! neglected). To make a call O(1), y(u) = −ln(band-mean T) is tabulated once per band and
 //! gas on a grid uniform in ln u (48 points per decade, u from 1e-6 to 1e4) and interpolated
 //! linearly in ln u; below the grid y ∝ u (the weak-absorption limit), above it the last
-//! segment is extended.
+//! segment is extended. The grid is the same for every band, so for the paths of one sun
+//! position ln u is taken once per gas ([`GasPaths`]) and the depths of all bands are read
+//! from the tables side by side ([`GasPaths::depths_all`]).
 
 use std::sync::OnceLock;
 
@@ -174,9 +176,39 @@ impl GridPoint {
 }
 
 /// y(u) from the table, interpolated linearly in ln u.
-#[inline]
+#[cfg(test)]
 fn lookup(curve: &[f64; N_GRID], u: f64) -> f64 {
     GridPoint::new(u).on(curve)
+}
+
+/// The tables of all bands side by side: for each gas, y at grid point j of band b at
+/// `y[j * bands + b]` (0 where the gas does not absorb), so that the depths of all bands at
+/// one path are read from two contiguous rows.
+struct Transposed {
+    bands: usize,
+    y: [Vec<f64>; 3],
+    absorbs: [Vec<bool>; 3],
+}
+
+fn transposed() -> &'static Transposed {
+    static T: OnceLock<Transposed> = OnceLock::new();
+    T.get_or_init(|| {
+        let t = tables();
+        let bands = t.len();
+        let y = std::array::from_fn(|g| {
+            let mut y = vec![0.0; N_GRID * bands];
+            for (b, curves) in t.iter().enumerate() {
+                if let Some(c) = &curves[g] {
+                    for j in 0..N_GRID {
+                        y[j * bands + b] = c[j];
+                    }
+                }
+            }
+            y
+        });
+        let absorbs = std::array::from_fn(|g| t.iter().map(|c| c[g].is_some()).collect());
+        Transposed { bands, y, absorbs }
+    })
 }
 
 /// The absorber paths of one sun position located on the table grid once, for the depths
@@ -210,6 +242,48 @@ impl GasPaths {
                 GridPoint::new(u_mixed),
             ],
             divisor,
+        }
+    }
+
+    /// [`GasPaths::depths`] of every band at once, band `b` at index `b` of `ozone`, `water`
+    /// and `mixed` (each resized to the number of bands) [unitless]; the same bits.
+    #[inline(always)]
+    pub fn depths_all(&self, ozone: &mut Vec<f64>, water: &mut Vec<f64>, mixed: &mut Vec<f64>) {
+        let t = transposed();
+        let nb = t.bands;
+        let divisor = self.divisor;
+        for (g, out) in [ozone, water, mixed].into_iter().enumerate() {
+            out.clear();
+            out.resize(nb, 0.0);
+            if divisor.is_nan() || divisor <= 0.0 {
+                out.fill(f64::NAN);
+                continue;
+            }
+            let absorbs = &t.absorbs[g][..nb];
+            let y = &t.y[g];
+            let out = &mut out[..nb];
+            match self.points[g] {
+                GridPoint::Zero => {
+                    for (o, &a) in out.iter_mut().zip(absorbs) {
+                        *o = if a { 0.0 / divisor } else { 0.0 };
+                    }
+                }
+                GridPoint::Below(u) => {
+                    let y0 = &y[..nb];
+                    for b in 0..nb {
+                        let v = y0[b] * u / U_MIN / divisor;
+                        out[b] = if absorbs[b] { v } else { 0.0 };
+                    }
+                }
+                GridPoint::At(j, f) => {
+                    let y0 = &y[j * nb..(j + 1) * nb];
+                    let y1 = &y[(j + 1) * nb..(j + 2) * nb];
+                    for b in 0..nb {
+                        let v = (y0[b] + f * (y1[b] - y0[b])) / divisor;
+                        out[b] = if absorbs[b] { v } else { 0.0 };
+                    }
+                }
+            }
         }
     }
 

@@ -1,7 +1,8 @@
 //! Instantaneous solar geometry: zenith angle, Earth–Sun distance and relative air mass.
 
 use chrono::{DateTime, Datelike, Utc};
-use solar_positioning::{Location, SolarPositions, delta_t};
+use solar_positioning::{Location, PreparedPositions, SolarPositions, delta_t};
+use std::cell::Cell;
 
 /// ΔT = TT − UT1 [s] for the time, from the Espenak & Meeus polynomials as updated in the
 /// `solar-positioning` crate; 69 s (its value around 2020–2026) outside their range
@@ -31,15 +32,32 @@ pub fn solar_zenith_deg(
         latitude: latitude_deg,
         longitude: longitude_deg,
     };
-    SolarPositions::new()
-        .at(
-            &time_utc,
-            location,
-            altitude_m,
-            delta_t_seconds(&time_utc),
-            None,
-        )
+    prepared_for(time_utc)
+        .and_then(|p| p.at(location, altitude_m, None).ok())
         .map_or(f64::NAN, |p| p.zenith_angle())
+}
+
+/// The time-dependent part of the SPA (heliocentric position, nutation, aberration,
+/// sidereal time; about 90 % of its cost) for `time_utc`, from the crate's
+/// [`SolarPositions::for_time`]; `None` outside its years. The last result of each thread is
+/// kept, so that observations at the same instant (several sites or instruments of a network
+/// sampled together) share it; the values are those of a fresh computation, bit for bit.
+fn prepared_for(time_utc: DateTime<Utc>) -> Option<PreparedPositions> {
+    thread_local! {
+        static LAST: Cell<Option<(DateTime<Utc>, PreparedPositions)>> = const { Cell::new(None) };
+    }
+    LAST.with(|last| {
+        if let Some((t, p)) = last.get()
+            && t == time_utc
+        {
+            return Some(p);
+        }
+        let p = SolarPositions::new()
+            .for_time(&time_utc, delta_t_seconds(&time_utc))
+            .ok()?;
+        last.set(Some((time_utc, p)));
+        Some(p)
+    })
 }
 
 /// Earth–Sun distance [AU] at `time_utc`: the heliocentric radius vector R of the NREL SPA

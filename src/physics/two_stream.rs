@@ -28,10 +28,16 @@
 //! distance 10⁻⁵ of it the result is the linear interpolation between μ0 = (1 ∓ 10⁻⁵)/k,
 //! which is continuous and accurate to about 10⁻¹⁰.
 //!
-//! **Speed.** [`solve_batch`] solves many layers (one per band) at one μ0 side by side: the
-//! inner loop has no branches or calls (the exponential is [`exp_nonpositive`], inlined), so
-//! it vectorises, and on x86-64 CPUs with AVX2 a copy compiled for AVX2 is chosen at run
-//! time. Results are bit-identical to [`solve_layer`] (tested).
+//! **Speed.** [`solve_batch`] solves many layers (one per band) at one μ0 side by side, in
+//! groups of eight: the inner loop has no branches or calls (the exponential is
+//! [`exp_nonpositive`], inlined), so it vectorises, and on x86-64 CPUs with AVX-512 or
+//! AVX2 + FMA a copy compiled for them is chosen at run time; a last, partial group is
+//! padded rather than left to a scalar loop. Groups of layers with g = 0 (Rayleigh
+//! scattering and gases) skip the delta scaling, which is the identity for them. Per layer
+//! there are two divisions and one square root besides the two exponentials (the three
+//! ratios over c + γ1 s share one division). Results are bit-identical to [`solve_layer`]
+//! (tested), whichever copy runs: the only fused operations are the explicit `mul_add` of
+//! the exponential, exactly rounded in hardware and in software alike.
 //!
 //! **Diffuse incidence.** The reflectance and transmittance for diffuse light are the
 //! two-stream solution without a beam source, with the same γ1, γ2 as the beam (common
@@ -150,13 +156,25 @@ pub fn delta_scale(optics: LayerOptics) -> LayerOptics {
 /// - `mu0`: cosine of the solar zenith angle [unitless, 0–1]
 #[inline]
 pub fn gammas(optics: LayerOptics, mu0: f64, closure: Closure) -> Gammas {
+    gammas_of::<false>(optics, mu0, closure)
+}
+
+/// [`gammas`]; with `CLEAR` the layer must have g = 0 (±0) and an ω that is not NaN, as
+/// Rayleigh scattering and gas absorption have: its delta scaling is then the identity
+/// (f = 0, so τ′ = 1·τ, ω′ = ω·1/1, g′ = 0 exactly) and is skipped, with the same bits.
+#[inline(always)]
+fn gammas_of<const CLEAR: bool>(optics: LayerOptics, mu0: f64, closure: Closure) -> Gammas {
     const SQRT3: f64 = 1.732_050_807_568_877_2;
     let optics = sanitize(optics);
-    let scaled = match closure {
-        Closure::DeltaEddington | Closure::Pifm => delta_scale(optics),
-        Closure::Eddington | Closure::Quadrature | Closure::HemisphericMean => optics,
+    let scaled = if CLEAR {
+        LayerOptics { g: 0.0, ..optics }
+    } else {
+        match closure {
+            Closure::DeltaEddington | Closure::Pifm => delta_scale(optics),
+            Closure::Eddington | Closure::Quadrature | Closure::HemisphericMean => optics,
+        }
     };
-    let (w, g) = (scaled.ssa, scaled.g);
+    let (w, g) = (scaled.ssa, if CLEAR { 0.0 } else { scaled.g });
     let (gamma1, gamma2, gamma3) = match closure {
         Closure::DeltaEddington | Closure::Eddington => (
             (7.0 - w * (4.0 + 3.0 * g)) * 0.25,
@@ -187,19 +205,18 @@ pub fn gammas(optics: LayerOptics, mu0: f64, closure: Closure) -> Gammas {
     }
 }
 
-/// Quantities of the homogeneous solution shared by the beam and the diffuse responses.
+/// Quantities of the homogeneous solution shared by the beam and the diffuse responses,
+/// already divided by the common denominator c + γ1 s.
 #[derive(Debug, Clone, Copy)]
 struct Homogeneous {
     /// Eigenvalue k = √(γ1² − γ2²) [unitless] of [1].
     k: f64,
-    /// E = e^(−kτ).
+    /// E/(c + γ1 s), E = e^(−kτ).
     e: f64,
-    /// c = (1 + E²)/2.
+    /// c/(c + γ1 s), c = (1 + E²)/2.
     c: f64,
-    /// s = (1 − E²)/(2k), → τ as k → 0.
+    /// s/(c + γ1 s), s = (1 − E²)/(2k) (→ τ as k → 0).
     s: f64,
-    /// 1/(c + γ1 s): the common denominator.
-    inv_den: f64,
 }
 
 #[inline]
@@ -211,19 +228,26 @@ fn homogeneous(gamma1: f64, gamma2: f64, tau: f64) -> Homogeneous {
     // s = (1 − E²)/(2k) = τ (1 − e^(−2x))/(2x); for small x its Taylor series
     // Σ (−2x)ⁿ/(n + 1)! = 1 − x + 2x²/3 − x³/3 + 2x⁴/15 − 2x⁵/45 (truncation 4x⁶/315 < 2e-14
     // for x < 1e-2, where 1 − E² would lose no more than 1e-14 either).
-    let s = if x < 1e-2 {
-        tau * (1.0
-            - x * (1.0 - x * (2.0 / 3.0 - x * (1.0 / 3.0 - x * (2.0 / 15.0 - x * (2.0 / 45.0))))))
+    // s = a/b with (a, b) = (series, 1) or (1 − E², 2k); then s/(c + γ1 s) = a/(bc + γ1 a)
+    // and c/(c + γ1 s) = bc/(bc + γ1 a): one division for all three ratios.
+    let (a, b) = if x < 1e-2 {
+        (
+            tau * (1.0
+                - x * (1.0
+                    - x * (2.0 / 3.0 - x * (1.0 / 3.0 - x * (2.0 / 15.0 - x * (2.0 / 45.0)))))),
+            1.0,
+        )
     } else {
-        (1.0 - e * e) / (2.0 * k)
+        (1.0 - e * e, 2.0 * k)
     };
     let c = 0.5 * (1.0 + e * e);
+    let q = 1.0 / (b * c + gamma1 * a);
+    let bq = b * q;
     Homogeneous {
         k,
-        e,
-        c,
-        s,
-        inv_den: 1.0 / (c + gamma1 * s),
+        e: e * bq,
+        c: c * bq,
+        s: a * q,
     }
 }
 
@@ -235,8 +259,8 @@ fn homogeneous(gamma1: f64, gamma2: f64, tau: f64) -> Homogeneous {
 #[inline]
 fn diffuse_from(gamma2: f64, h: &Homogeneous) -> DiffuseResponse {
     DiffuseResponse {
-        reflectance: gamma2 * h.s * h.inv_den,
-        transmittance: h.e * h.inv_den,
+        reflectance: gamma2 * h.s,
+        transmittance: h.e,
     }
 }
 
@@ -265,7 +289,7 @@ fn beam_at(
     let alpha1 = gamma1 * gamma4 + gamma2 * gamma3;
     let alpha2 = gamma1 * gamma3 + gamma2 * gamma4;
     let k2mu0 = h.k * h.k * mu0;
-    let factor = ssa / (1.0 - h.k * h.k * mu0 * mu0) * h.inv_den;
+    let factor = ssa / (1.0 - h.k * h.k * mu0 * mu0);
     let r = factor * (h.s * (alpha2 - k2mu0 * gamma3) + (gamma3 - mu0 * alpha2) * (h.c - h.e * tb));
     let t = -factor
         * (tb * h.s * (alpha1 + k2mu0 * gamma4) + (gamma4 + mu0 * alpha1) * (tb * h.c - h.e));
@@ -276,7 +300,8 @@ fn beam_at(
 ///
 /// Range reduction of Cody & Waite (1980, Software Manual for the Elementary Functions,
 /// Prentice-Hall): x = n ln 2 + r with |r| ≤ ln 2 / 2 (ln 2 split in two parts so that r is
-/// exact), e^r by its Taylor polynomial to degree 13 (truncation < 5e-18), scaled by 2^n
+/// exact), e^r by its Taylor polynomial to degree 13 (truncation < 5e-18; Horner's scheme
+/// with fused multiply–adds), scaled by 2^n
 /// through the exponent bits. Relative error ≤ 4e-16 against `f64::exp` (tested); exactly 1
 /// at x = 0; 0 below −708 (where e^x is below the normal range); NaN stays NaN. Positive x
 /// are clamped to 0 (never used so).
@@ -301,7 +326,7 @@ pub fn exp_nonpositive(x: f64) -> f64 {
     let n = shifted - SHIFT; // round(x / ln 2)
     let r = (x - n * LN2_HI) - n * LN2_LO;
     // Taylor polynomial of e^r, Horner form, 1/k! coefficients.
-    let mut p = 1.0 / 6_227_020_800.0; // 1/13!
+    let mut p: f64 = 1.0 / 6_227_020_800.0; // 1/13!
     for c in [
         1.0 / 479_001_600.0,
         1.0 / 39_916_800.0,
@@ -317,7 +342,10 @@ pub fn exp_nonpositive(x: f64) -> f64 {
         1.0,
         1.0,
     ] {
-        p = p * r + c;
+        // Fused multiply–add: one rounding per step (hardware FMA in the vectorised loops,
+        // which are compiled for it; the correctly rounded software `fma` elsewhere, with
+        // the same bits).
+        p = p.mul_add(r, c);
     }
     // 2^n from the exponent bits: the low bits of `shifted` hold n (its ulp is 1), and
     // n ∈ [−1022, 0] here.
@@ -339,8 +367,27 @@ pub fn exp_nonpositive(x: f64) -> f64 {
 ///   response
 ///
 /// Valid for any τ (no overflow), for ω up to and including 1, and across k μ0 = 1.
-#[inline]
 pub fn solve_layer(optics: LayerOptics, mu0: f64, closure: Closure) -> LayerResponse {
+    #[cfg(target_arch = "x86_64")]
+    {
+        if std::arch::is_x86_feature_detected!("fma") {
+            // SAFETY: the CPU supports FMA (checked just above), the only requirement of
+            // `solve_layer_fma`; the results are the same bits as without it.
+            return unsafe { solve_layer_fma(optics, mu0, closure) };
+        }
+    }
+    solve_layer_any(optics, mu0, closure)
+}
+
+/// [`solve_layer`] compiled for hardware FMA (used by the exponential).
+#[cfg(target_arch = "x86_64")]
+#[target_feature(enable = "fma")]
+fn solve_layer_fma(optics: LayerOptics, mu0: f64, closure: Closure) -> LayerResponse {
+    solve_layer_any(optics, mu0, closure)
+}
+
+#[inline(always)]
+fn solve_layer_any(optics: LayerOptics, mu0: f64, closure: Closure) -> LayerResponse {
     if mu0.is_nan() || mu0 <= 0.0 {
         let gm = gammas(optics, 1.0, closure);
         let h = homogeneous(gm.gamma1, gm.gamma2, gm.scaled.tau);
@@ -362,10 +409,20 @@ pub fn solve_layer(optics: LayerOptics, mu0: f64, closure: Closure) -> LayerResp
 /// must be replaced by [`resonance`].
 #[inline(always)]
 fn lane(optics: LayerOptics, mu0: f64, closure: Closure) -> (LayerResponse, bool) {
-    let gm = gammas(optics, mu0, closure);
+    lane_of::<false>(optics, mu0, closure)
+}
+
+/// [`lane`]; `CLEAR` as in [`gammas_of`] (same bits for such layers).
+#[inline(always)]
+fn lane_of<const CLEAR: bool>(
+    optics: LayerOptics,
+    mu0: f64,
+    closure: Closure,
+) -> (LayerResponse, bool) {
+    let gm = gammas_of::<CLEAR>(optics, mu0, closure);
     let sc = gm.scaled;
     let h = homogeneous(gm.gamma1, gm.gamma2, sc.tau);
-    let tb = exp_nonpositive(-sc.tau / mu0);
+    let tb = exp_nonpositive(-sc.tau * (1.0 / mu0));
     let (r, t) = beam_at(sc.ssa, gm.gamma1, gm.gamma2, gm.gamma3, tb, mu0, &h);
     let near = (h.k * mu0 - 1.0).abs() < RESONANCE_WINDOW;
     (
@@ -396,7 +453,7 @@ fn resonance(
     let h = homogeneous(gm.gamma1, gm.gamma2, sc.tau);
     let side = |mu: f64| {
         let g3 = gammas(optics, mu, closure).gamma3;
-        let tb = exp_nonpositive(-sc.tau / mu);
+        let tb = exp_nonpositive(-sc.tau * (1.0 / mu));
         beam_at(sc.ssa, gm.gamma1, gm.gamma2, g3, tb, mu, &h)
     };
     let mu_a = (1.0 - RESONANCE_WINDOW) / h.k;
@@ -430,7 +487,28 @@ pub struct ResponseBatch {
     near: Vec<bool>,
 }
 
+/// A borrowed range of a [`ResponseBatch`] (one entry per layer).
+#[derive(Debug, Clone, Copy)]
+pub struct ResponseSlices<'a> {
+    pub r_dif: &'a [f64],
+    pub t_dif: &'a [f64],
+    pub r_dir: &'a [f64],
+    pub t_dir: &'a [f64],
+    pub tb: &'a [f64],
+}
+
 impl ResponseBatch {
+    /// The responses of the layers in `range` (panics if out of range, like slice indexing).
+    pub fn slices(&self, range: std::ops::Range<usize>) -> ResponseSlices<'_> {
+        ResponseSlices {
+            r_dif: &self.r_dif[range.clone()],
+            t_dif: &self.t_dif[range.clone()],
+            r_dir: &self.r_dir[range.clone()],
+            t_dir: &self.t_dir[range.clone()],
+            tb: &self.tb[range],
+        }
+    }
+
     /// The response of layer `i` (panics if out of range, like slice indexing).
     #[inline]
     pub fn get(&self, i: usize) -> LayerResponse {
@@ -484,10 +562,15 @@ pub fn solve_batch(optics: &[LayerOptics], mu0: f64, closure: Closure, out: &mut
     }
     #[cfg(target_arch = "x86_64")]
     {
-        if std::arch::is_x86_feature_detected!("avx2") {
-            // SAFETY: the CPU supports AVX2 (checked just above), the only requirement of
-            // `batch_avx2`. The arithmetic is the same IEEE operations in the same order
+        if std::arch::is_x86_feature_detected!("avx512f") {
+            // SAFETY: the CPU supports AVX-512F (checked just above), the only requirement of
+            // `batch_avx512`. The arithmetic is the same IEEE operations in the same order
             // (no FMA contraction), so the results are bit-identical to the baseline path.
+            unsafe { batch_avx512(optics, mu0, closure, out) };
+        } else if std::arch::is_x86_feature_detected!("avx2")
+            && std::arch::is_x86_feature_detected!("fma")
+        {
+            // SAFETY: as above, for AVX2 and `batch_avx2`.
             unsafe { batch_avx2(optics, mu0, closure, out) };
         } else {
             batch_by_closure(optics, mu0, closure, out);
@@ -495,18 +578,29 @@ pub fn solve_batch(optics: &[LayerOptics], mu0: f64, closure: Closure, out: &mut
     }
     #[cfg(not(target_arch = "x86_64"))]
     batch_by_closure(optics, mu0, closure, out);
-    for (i, o) in optics.iter().enumerate() {
-        if out.near[i] {
-            let exact = out.get(i);
-            out.set(i, resonance(*o, mu0, closure, exact));
+    // Rarely any layer is near its resonance: look for one first (a branch-free scan).
+    let n = optics.len();
+    if out.near[..n].iter().fold(false, |any, &f| any | f) {
+        for (i, o) in optics.iter().enumerate() {
+            if out.near[i] {
+                let exact = out.get(i);
+                out.set(i, resonance(*o, mu0, closure, exact));
+            }
         }
     }
 }
 
 /// The batch loop compiled for AVX2 (four f64 lanes instead of SSE2's two).
 #[cfg(target_arch = "x86_64")]
-#[target_feature(enable = "avx2")]
+#[target_feature(enable = "avx2,fma")]
 fn batch_avx2(optics: &[LayerOptics], mu0: f64, closure: Closure, out: &mut ResponseBatch) {
+    batch_by_closure(optics, mu0, closure, out);
+}
+
+/// The batch loop compiled for AVX-512 (eight f64 lanes).
+#[cfg(target_arch = "x86_64")]
+#[target_feature(enable = "avx512f")]
+fn batch_avx512(optics: &[LayerOptics], mu0: f64, closure: Closure, out: &mut ResponseBatch) {
     batch_by_closure(optics, mu0, closure, out);
 }
 
@@ -522,20 +616,138 @@ fn batch_by_closure(optics: &[LayerOptics], mu0: f64, closure: Closure, out: &mu
     }
 }
 
+/// Layers solved side by side per group: the vector width of AVX-512 (two of AVX2).
+const GROUP: usize = 8;
+
 #[inline(always)]
 fn batch_loop(optics: &[LayerOptics], mu0: f64, closure: Closure, out: &mut ResponseBatch) {
+    // Whole groups of eight layers first, then the rest solved as one more group of eight,
+    // padded with copies of the last layer, so that no layer is left to a slow scalar
+    // remainder loop. A group of layers without aerosol (g = 0, ω not NaN: Rayleigh and
+    // gases) skips the delta scaling, which is the identity for them.
     let n = optics.len();
-    let (r_dif, t_dif) = (&mut out.r_dif[..n], &mut out.t_dif[..n]);
-    let (r_dir, t_dir) = (&mut out.r_dir[..n], &mut out.t_dir[..n]);
-    let (tb, near) = (&mut out.tb[..n], &mut out.near[..n]);
-    for i in 0..n {
-        let (r, flag) = lane(optics[i], mu0, closure);
-        r_dif[i] = r.diffuse.reflectance;
-        t_dif[i] = r.diffuse.transmittance;
-        r_dir[i] = r.direct.reflectance;
-        t_dir[i] = r.direct.diffuse_transmittance;
-        tb[i] = r.direct.direct_transmittance;
-        near[i] = flag;
+    let main = n - n % GROUP;
+    let mut base = 0;
+    while base < main {
+        let group: &[LayerOptics; GROUP] = optics[base..base + GROUP].try_into().unwrap();
+        let mut v = [[0.0; GROUP]; 5];
+        let mut flags = [false; GROUP];
+        {
+            let [a, b, c, d, e] = &mut v;
+            if is_clear(group) {
+                solve_group::<true>(group, mu0, closure, [a, b, c, d, e], &mut flags);
+            } else {
+                solve_group::<false>(group, mu0, closure, [a, b, c, d, e], &mut flags);
+            }
+        }
+        store_group(out, base, GROUP, &v, &flags);
+        base += GROUP;
+    }
+    let rest = n - main;
+    if rest == 0 {
+        return;
+    }
+    let mut padded = [optics[n - 1]; GROUP];
+    padded[..rest].copy_from_slice(&optics[main..]);
+    let mut v = [[0.0; GROUP]; 5];
+    let mut flags = [false; GROUP];
+    {
+        let [a, b, c, d, e] = &mut v;
+        if is_clear(&padded) {
+            solve_group::<true>(&padded, mu0, closure, [a, b, c, d, e], &mut flags);
+        } else {
+            solve_group::<false>(&padded, mu0, closure, [a, b, c, d, e], &mut flags);
+        }
+    }
+    store_group(out, main, rest, &v, &flags);
+}
+
+/// Whether every layer of the group has g = 0 and an ω that is not NaN (see [`gammas_of`]).
+#[inline(always)]
+fn is_clear(group: &[LayerOptics; GROUP]) -> bool {
+    group
+        .iter()
+        .fold(true, |all, o| all & (o.g == 0.0) & !o.ssa.is_nan())
+}
+
+#[inline(always)]
+fn solve_group<const CLEAR: bool>(
+    group: &[LayerOptics; GROUP],
+    mu0: f64,
+    closure: Closure,
+    v: [&mut [f64; GROUP]; 5],
+    flags: &mut [bool; GROUP],
+) {
+    let [v0, v1, v2, v3, v4] = v;
+    for i in 0..GROUP {
+        let (r, flag) = lane_of::<CLEAR>(group[i], mu0, closure);
+        v0[i] = r.diffuse.reflectance;
+        v1[i] = r.diffuse.transmittance;
+        v2[i] = r.direct.reflectance;
+        v3[i] = r.direct.diffuse_transmittance;
+        v4[i] = r.direct.direct_transmittance;
+        flags[i] = flag;
+    }
+}
+
+#[inline(always)]
+fn store_group(
+    out: &mut ResponseBatch,
+    base: usize,
+    len: usize,
+    v: &[[f64; GROUP]; 5],
+    flags: &[bool; GROUP],
+) {
+    let range = base..base + len;
+    out.r_dif[range.clone()].copy_from_slice(&v[0][..len]);
+    out.t_dif[range.clone()].copy_from_slice(&v[1][..len]);
+    out.r_dir[range.clone()].copy_from_slice(&v[2][..len]);
+    out.t_dir[range.clone()].copy_from_slice(&v[3][..len]);
+    out.tb[range.clone()].copy_from_slice(&v[4][..len]);
+    out.near[range].copy_from_slice(&flags[..len]);
+}
+
+/// e^(−τᵢ/μ0) for many optical depths at one μ0 into `out` (resized to `tau.len()`) [unitless],
+/// bit-identical to [`exp_nonpositive`] of each; vectorised (AVX2 where available).
+///
+/// - `tau`: optical depths [unitless, ≥ 0]; `mu0`: cosine of the solar zenith [unitless, > 0]
+pub fn beam_transmission_batch(tau: &[f64], mu0: f64, out: &mut Vec<f64>) {
+    out.clear();
+    out.resize(tau.len(), 0.0);
+    #[cfg(target_arch = "x86_64")]
+    {
+        if std::arch::is_x86_feature_detected!("avx512f") {
+            // SAFETY: the CPU supports AVX-512F (checked just above), the only requirement.
+            unsafe { beam_avx512(tau, mu0, out) };
+            return;
+        }
+        if std::arch::is_x86_feature_detected!("avx2") && std::arch::is_x86_feature_detected!("fma")
+        {
+            // SAFETY: the CPU supports AVX2 (checked just above), the only requirement.
+            unsafe { beam_avx2(tau, mu0, out) };
+            return;
+        }
+    }
+    beam_loop(tau, mu0, out);
+}
+
+#[cfg(target_arch = "x86_64")]
+#[target_feature(enable = "avx2,fma")]
+fn beam_avx2(tau: &[f64], mu0: f64, out: &mut [f64]) {
+    beam_loop(tau, mu0, out);
+}
+
+#[cfg(target_arch = "x86_64")]
+#[target_feature(enable = "avx512f")]
+fn beam_avx512(tau: &[f64], mu0: f64, out: &mut [f64]) {
+    beam_loop(tau, mu0, out);
+}
+
+#[inline(always)]
+fn beam_loop(tau: &[f64], mu0: f64, out: &mut [f64]) {
+    let out = &mut out[..tau.len()];
+    for (o, &t) in out.iter_mut().zip(tau) {
+        *o = exp_nonpositive(-t * (1.0 / mu0));
     }
 }
 

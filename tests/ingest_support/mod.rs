@@ -182,3 +182,38 @@ pub fn write_minimal_xlsx(path: &Path, date1904: bool, rows: &[Vec<String>]) {
     ];
     std::fs::write(path, stored_zip(&entries)).unwrap();
 }
+
+/// A one-sheet OpenDocument spreadsheet (ODF 1.2, part 1, §9.1). Cells: `=date:<ISO>` a
+/// date cell, `=num:<v>` a float cell, anything else a string cell.
+pub fn write_minimal_ods(path: &Path, sheet: &str, rows: &[Vec<String>]) {
+    let mut table = format!("<table:table table:name=\"{sheet}\">");
+    for row in rows {
+        table.push_str("<table:table-row>");
+        for v in row {
+            if let Some(d) = v.strip_prefix("=date:") {
+                table.push_str(&format!("<table:table-cell office:value-type=\"date\" office:date-value=\"{d}\"><text:p>{d}</text:p></table:table-cell>"));
+            } else if let Some(n) = v.strip_prefix("=num:") {
+                table.push_str(&format!("<table:table-cell office:value-type=\"float\" office:value=\"{n}\"><text:p>{n}</text:p></table:table-cell>"));
+            } else if v.is_empty() {
+                table.push_str("<table:table-cell/>");
+            } else {
+                table.push_str(&format!("<table:table-cell office:value-type=\"string\"><text:p>{v}</text:p></table:table-cell>"));
+            }
+        }
+        table.push_str("</table:table-row>");
+    }
+    table.push_str("</table:table>");
+    let content = format!(
+        "<?xml version=\"1.0\" encoding=\"UTF-8\"?><office:document-content xmlns:office=\"urn:oasis:names:tc:opendocument:xmlns:office:1.0\" xmlns:table=\"urn:oasis:names:tc:opendocument:xmlns:table:1.0\" xmlns:text=\"urn:oasis:names:tc:opendocument:xmlns:text:1.0\" office:version=\"1.2\"><office:body><office:spreadsheet>{table}</office:spreadsheet></office:body></office:document-content>"
+    );
+    let manifest = "<?xml version=\"1.0\" encoding=\"UTF-8\"?><manifest:manifest xmlns:manifest=\"urn:oasis:names:tc:opendocument:xmlns:manifest:1.0\" manifest:version=\"1.2\"><manifest:file-entry manifest:full-path=\"/\" manifest:media-type=\"application/vnd.oasis.opendocument.spreadsheet\"/><manifest:file-entry manifest:full-path=\"content.xml\" manifest:media-type=\"text/xml\"/></manifest:manifest>";
+    let entries = vec![
+        (
+            "mimetype",
+            "application/vnd.oasis.opendocument.spreadsheet".to_string(),
+        ),
+        ("META-INF/manifest.xml", manifest.to_string()),
+        ("content.xml", content),
+    ];
+    std::fs::write(path, stored_zip(&entries)).unwrap();
+}
