@@ -80,15 +80,8 @@ pub struct RunArgs {
     /// Output folder (created if missing); default: the job file's setting, else `.`.
     #[arg(long, value_name = "DIR")]
     pub out: Option<PathBuf>,
-    /// Also write the results at full precision as csv or parquet.
-    #[arg(long, value_enum)]
-    pub side_output: Option<SideOutputArg>,
-    /// Append log lines to this file (timestamps, counts, outputs, problems).
-    #[arg(long, value_name = "FILE")]
-    pub log: Option<PathBuf>,
-    /// Only errors on stderr; no progress bar.
-    #[arg(long, short)]
-    pub quiet: bool,
+    #[command(flatten)]
+    pub outputs: OutputArgs,
     /// Print the time of each stage on stderr (`timing: <stage> <seconds> s`).
     #[arg(long)]
     pub timings: bool,
@@ -122,18 +115,25 @@ pub struct MergeArgs {
     /// Output name with `{job}`, `{period}`, `{date}`; default `{job}-merged-report.xlsx`.
     #[arg(long, value_name = "PATTERN")]
     pub output: Option<String>,
-    /// Also write the results at full precision as csv or parquet.
-    #[arg(long, value_enum)]
-    pub side_output: Option<SideOutputArg>,
-    /// Append log lines to this file.
-    #[arg(long, value_name = "FILE")]
-    pub log: Option<PathBuf>,
-    /// Only errors on stderr.
-    #[arg(long, short)]
-    pub quiet: bool,
+    #[command(flatten)]
+    pub outputs: OutputArgs,
     /// Date for `{date}` (YYYY-MM-DD); default: today (UTC).
     #[arg(long, value_name = "YYYY-MM-DD")]
     pub today: Option<String>,
+}
+
+/// Side outputs and messages, shared by `run` and `merge`.
+#[derive(Debug, Args, Clone)]
+pub struct OutputArgs {
+    /// Also write the results at full precision as csv or parquet.
+    #[arg(long, value_enum)]
+    pub side_output: Option<SideOutputArg>,
+    /// Append log lines to this file (timestamps, counts, outputs, problems).
+    #[arg(long, value_name = "FILE")]
+    pub log: Option<PathBuf>,
+    /// Only errors on stderr; no progress bar.
+    #[arg(long, short)]
+    pub quiet: bool,
 }
 
 #[derive(Debug, Clone, Copy, clap::ValueEnum)]

@@ -36,7 +36,7 @@ pub const DEFAULT_MERGED_NAME: &str = "{job}-merged-report.xlsx";
 
 /// Merge partial results into one report; errors are also written to the log file.
 pub fn merge(a: &MergeArgs) -> anyhow::Result<Status> {
-    let log = Log::new(a.quiet, a.log.as_deref())?;
+    let log = Log::new(a.outputs.quiet, a.outputs.log.as_deref())?;
     match merge_inner(a, &log) {
         Ok(s) => Ok(s),
         Err(e) => {
@@ -100,7 +100,7 @@ fn merge_inner(a: &MergeArgs, log: &Log) -> anyhow::Result<Status> {
     let _lock = FolderLock::acquire(&out_dir)
         .with_context(|| format!("{}: cannot lock the output folder", out_dir.display()))?;
     let path = out_dir.join(name);
-    let side = a.side_output.map(SideFormat::from).map(|f| {
+    let side = a.outputs.side_output.map(SideFormat::from).map(|f| {
         let ext = match f {
             SideFormat::Csv => "csv",
             SideFormat::Parquet => "parquet",

@@ -23,7 +23,7 @@ const CHUNK: usize = 4096;
 
 /// Run the main job; errors are also written to the log file.
 pub fn run(a: &RunArgs) -> anyhow::Result<Status> {
-    let log = Log::new(a.quiet, a.log.as_deref())?;
+    let log = Log::new(a.outputs.quiet, a.outputs.log.as_deref())?;
     match run_inner(a, &log) {
         Ok(s) => Ok(s),
         Err(e) => {
@@ -38,7 +38,7 @@ fn run_inner(a: &RunArgs, log: &Log) -> anyhow::Result<Status> {
     let ov = Overrides {
         template: a.template.clone(),
         out: a.out.clone(),
-        side_output: a.side_output.map(Into::into),
+        side_output: a.outputs.side_output.map(Into::into),
     };
     let plan = plan::build(&a.select, &ov)?;
     let tpl = template::load(&plan.template)?;

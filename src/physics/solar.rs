@@ -134,6 +134,41 @@ mod tests {
         }
     }
 
+    /// The kept time-dependent part gives the crate's own result, bit for bit, whatever the
+    /// order of the calls.
+    #[test]
+    fn kept_time_dependent_part_changes_nothing() {
+        let t1 = Utc.with_ymd_and_hms(2024, 6, 21, 9, 30, 0).unwrap();
+        let t2 = Utc.with_ymd_and_hms(2023, 12, 2, 15, 0, 0).unwrap();
+        let fresh = |t: DateTime<Utc>, lat: f64, lon: f64| {
+            SolarPositions::new()
+                .at(
+                    &t,
+                    Location {
+                        latitude: lat,
+                        longitude: lon,
+                    },
+                    250.0,
+                    delta_t_seconds(&t),
+                    None,
+                )
+                .unwrap()
+                .zenith_angle()
+        };
+        for (t, lat, lon) in [
+            (t1, 40.0, 10.0),
+            (t1, -33.0, 151.0),
+            (t2, 40.0, 10.0),
+            (t1, 40.0, 10.0),
+            (t2, 70.0, -150.0),
+        ] {
+            assert_eq!(
+                solar_zenith_deg(t, lat, lon, 250.0).to_bits(),
+                fresh(t, lat, lon).to_bits()
+            );
+        }
+    }
+
     #[test]
     fn bad_coordinates_give_nan_not_a_panic() {
         let t = Utc.with_ymd_and_hms(2024, 6, 21, 12, 0, 0).unwrap();

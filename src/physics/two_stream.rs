@@ -33,9 +33,8 @@
 //! [`exp_nonpositive`], inlined), so it vectorises, and on x86-64 CPUs with AVX-512 or
 //! AVX2 + FMA a copy compiled for them is chosen at run time; a last, partial group is
 //! padded rather than left to a scalar loop. Groups of layers with g = 0 (Rayleigh
-//! scattering and gases) skip the delta scaling, which is the identity for them. Per layer
-//! there are two divisions and one square root besides the two exponentials (the three
-//! ratios over c + γ1 s share one division). Results are bit-identical to [`solve_layer`]
+//! scattering and gases) skip the delta scaling, which is the identity for them. Results
+//! are bit-identical to [`solve_layer`]
 //! (tested), whichever copy runs: the only fused operations are the explicit `mul_add` of
 //! the exponential, exactly rounded in hardware and in software alike.
 //!
@@ -205,18 +204,19 @@ fn gammas_of<const CLEAR: bool>(optics: LayerOptics, mu0: f64, closure: Closure)
     }
 }
 
-/// Quantities of the homogeneous solution shared by the beam and the diffuse responses,
-/// already divided by the common denominator c + γ1 s.
+/// Quantities of the homogeneous solution shared by the beam and the diffuse responses.
 #[derive(Debug, Clone, Copy)]
 struct Homogeneous {
     /// Eigenvalue k = √(γ1² − γ2²) [unitless] of [1].
     k: f64,
-    /// E/(c + γ1 s), E = e^(−kτ).
+    /// E = e^(−kτ).
     e: f64,
-    /// c/(c + γ1 s), c = (1 + E²)/2.
+    /// c = (1 + E²)/2.
     c: f64,
-    /// s/(c + γ1 s), s = (1 − E²)/(2k) (→ τ as k → 0).
+    /// s = (1 − E²)/(2k), → τ as k → 0.
     s: f64,
+    /// 1/(c + γ1 s): the common denominator.
+    inv_den: f64,
 }
 
 #[inline]
@@ -228,26 +228,19 @@ fn homogeneous(gamma1: f64, gamma2: f64, tau: f64) -> Homogeneous {
     // s = (1 − E²)/(2k) = τ (1 − e^(−2x))/(2x); for small x its Taylor series
     // Σ (−2x)ⁿ/(n + 1)! = 1 − x + 2x²/3 − x³/3 + 2x⁴/15 − 2x⁵/45 (truncation 4x⁶/315 < 2e-14
     // for x < 1e-2, where 1 − E² would lose no more than 1e-14 either).
-    // s = a/b with (a, b) = (series, 1) or (1 − E², 2k); then s/(c + γ1 s) = a/(bc + γ1 a)
-    // and c/(c + γ1 s) = bc/(bc + γ1 a): one division for all three ratios.
-    let (a, b) = if x < 1e-2 {
-        (
-            tau * (1.0
-                - x * (1.0
-                    - x * (2.0 / 3.0 - x * (1.0 / 3.0 - x * (2.0 / 15.0 - x * (2.0 / 45.0)))))),
-            1.0,
-        )
+    let s = if x < 1e-2 {
+        tau * (1.0
+            - x * (1.0 - x * (2.0 / 3.0 - x * (1.0 / 3.0 - x * (2.0 / 15.0 - x * (2.0 / 45.0))))))
     } else {
-        (1.0 - e * e, 2.0 * k)
+        (1.0 - e * e) / (2.0 * k)
     };
     let c = 0.5 * (1.0 + e * e);
-    let q = 1.0 / (b * c + gamma1 * a);
-    let bq = b * q;
     Homogeneous {
         k,
-        e: e * bq,
-        c: c * bq,
-        s: a * q,
+        e,
+        c,
+        s,
+        inv_den: 1.0 / (c + gamma1 * s),
     }
 }
 
@@ -259,8 +252,8 @@ fn homogeneous(gamma1: f64, gamma2: f64, tau: f64) -> Homogeneous {
 #[inline]
 fn diffuse_from(gamma2: f64, h: &Homogeneous) -> DiffuseResponse {
     DiffuseResponse {
-        reflectance: gamma2 * h.s,
-        transmittance: h.e,
+        reflectance: gamma2 * h.s * h.inv_den,
+        transmittance: h.e * h.inv_den,
     }
 }
 
@@ -289,7 +282,7 @@ fn beam_at(
     let alpha1 = gamma1 * gamma4 + gamma2 * gamma3;
     let alpha2 = gamma1 * gamma3 + gamma2 * gamma4;
     let k2mu0 = h.k * h.k * mu0;
-    let factor = ssa / (1.0 - h.k * h.k * mu0 * mu0);
+    let factor = ssa / (1.0 - h.k * h.k * mu0 * mu0) * h.inv_den;
     let r = factor * (h.s * (alpha2 - k2mu0 * gamma3) + (gamma3 - mu0 * alpha2) * (h.c - h.e * tb));
     let t = -factor
         * (tb * h.s * (alpha1 + k2mu0 * gamma4) + (gamma4 + mu0 * alpha1) * (tb * h.c - h.e));
@@ -422,7 +415,7 @@ fn lane_of<const CLEAR: bool>(
     let gm = gammas_of::<CLEAR>(optics, mu0, closure);
     let sc = gm.scaled;
     let h = homogeneous(gm.gamma1, gm.gamma2, sc.tau);
-    let tb = exp_nonpositive(-sc.tau * (1.0 / mu0));
+    let tb = exp_nonpositive(-sc.tau / mu0);
     let (r, t) = beam_at(sc.ssa, gm.gamma1, gm.gamma2, gm.gamma3, tb, mu0, &h);
     let near = (h.k * mu0 - 1.0).abs() < RESONANCE_WINDOW;
     (
@@ -453,7 +446,7 @@ fn resonance(
     let h = homogeneous(gm.gamma1, gm.gamma2, sc.tau);
     let side = |mu: f64| {
         let g3 = gammas(optics, mu, closure).gamma3;
-        let tb = exp_nonpositive(-sc.tau * (1.0 / mu));
+        let tb = exp_nonpositive(-sc.tau / mu);
         beam_at(sc.ssa, gm.gamma1, gm.gamma2, g3, tb, mu, &h)
     };
     let mu_a = (1.0 - RESONANCE_WINDOW) / h.k;
@@ -747,7 +740,7 @@ fn beam_avx512(tau: &[f64], mu0: f64, out: &mut [f64]) {
 fn beam_loop(tau: &[f64], mu0: f64, out: &mut [f64]) {
     let out = &mut out[..tau.len()];
     for (o, &t) in out.iter_mut().zip(tau) {
-        *o = exp_nonpositive(-t * (1.0 / mu0));
+        *o = exp_nonpositive(-t / mu0);
     }
 }
 
