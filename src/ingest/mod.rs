@@ -282,6 +282,7 @@ fn finish(rows: Rows, mut out: Ingested) -> Result<Ingested, IngestError> {
     out.observations.reserve(accepted.len());
     out.row_warnings.reserve(accepted.len());
     for a in accepted {
+        let a = *a;
         out.sites.push(a.site);
         out.origins.push(a.origin);
         out.observations.push(a.observation);
@@ -291,19 +292,40 @@ fn finish(rows: Rows, mut out: Ingested) -> Result<Ingested, IngestError> {
 }
 
 /// Assumptions, tallied over computed rows, spelled out once, in a fixed order.
-fn tally_assumptions(accepted: &[read::Accepted]) -> Vec<Assumption> {
-    let mut tally: std::collections::HashMap<
-        (&'static str, &read::Val, ValueSource),
+fn tally_assumptions(accepted: &[Box<read::Accepted>]) -> Vec<Assumption> {
+    // Rows mostly repeat one of a few assumption lists (one per site): equal lists are
+    // counted together, then tallied once each.
+    type List<'a> = &'a [(&'static str, read::Val, ValueSource)];
+    let mut lists: Vec<(List<'_>, usize)> = Vec::new();
+    let mut tally: Tally<'_> = Default::default();
+    type Tally<'a> = std::collections::HashMap<
+        (&'static str, &'a read::Val, ValueSource),
         usize,
         resolve::FxBuild,
-    > = Default::default();
-    for a in accepted {
-        for (k, t) in a.assumptions.iter().enumerate() {
-            if a.assumptions[..k].contains(t) {
+    >;
+    fn add<'a>(tally: &mut Tally<'a>, list: List<'a>, n: usize) {
+        for (k, t) in list.iter().enumerate() {
+            if list[..k].contains(t) {
                 continue;
             }
-            *tally.entry((t.0, &t.1, t.2)).or_insert(0) += 1;
+            *tally.entry((t.0, &t.1, t.2)).or_insert(0) += n;
         }
+    }
+    for a in accepted {
+        let list = a.assumptions.as_slice();
+        match lists.iter().position(|(l, _)| *l == list) {
+            Some(j) => lists[j].1 += 1,
+            None => {
+                if lists.len() == 16 {
+                    let (l, n) = lists.remove(0);
+                    add(&mut tally, l, n);
+                }
+                lists.push((list, 1));
+            }
+        }
+    }
+    for (l, n) in lists {
+        add(&mut tally, l, n);
     }
     let mut assumptions: Vec<Assumption> = tally
         .into_iter()
@@ -322,18 +344,18 @@ fn tally_assumptions(accepted: &[read::Accepted]) -> Vec<Assumption> {
 
 type ColumnBuilder<'a> = Box<dyn Fn() -> PolarsResult<Column> + Send + Sync + 'a>;
 
-fn build_frame(rows: &[read::Accepted]) -> PolarsResult<DataFrame> {
+fn build_frame(rows: &[Box<read::Accepted>]) -> PolarsResult<DataFrame> {
     use rayon::prelude::*;
     let n = rows.len();
     fn num<'a>(
-        rows: &'a [read::Accepted],
+        rows: &'a [Box<read::Accepted>],
         name: &'static str,
         g: fn(&read::Accepted) -> f64,
     ) -> ColumnBuilder<'a> {
         Box::new(move || {
             Ok(Column::new(
                 name.into(),
-                rows.iter().map(g).collect::<Vec<f64>>(),
+                rows.iter().map(|r| g(r)).collect::<Vec<f64>>(),
             ))
         })
     }
@@ -448,7 +470,7 @@ fn build_frame(rows: &[read::Accepted]) -> PolarsResult<DataFrame> {
 }
 
 /// The values as measured: one column per quantity and wavelength.
-fn spectral_columns(rows: &[read::Accepted]) -> Vec<Column> {
+fn spectral_columns(rows: &[Box<read::Accepted>]) -> Vec<Column> {
     use rayon::prelude::*;
     type Visit = fn(&read::Accepted, &mut dyn FnMut(f64, f64));
     let quantities: [(&str, Visit); 3] = [

@@ -594,7 +594,10 @@ pub(crate) struct Accepted {
 /// Rows of all sheets so far.
 #[derive(Debug, Default)]
 pub(crate) struct Rows {
-    pub accepted: Vec<Accepted>,
+    /// Boxed: rows are built in parallel and then only their pointers move (an accepted
+    /// row is some 400 bytes).
+    #[allow(clippy::vec_box)]
+    pub accepted: Vec<Box<Accepted>>,
     pub rejected: Vec<Rejection>,
     pub counts: Counts,
     pub warnings: Vec<String>,
@@ -689,7 +692,8 @@ pub(crate) fn read_rows(ctx: &SheetContext<'_>, rows: &mut Rows) {
     // Rows are read and checked in parallel (each on its own), then counted and checked for
     // duplicates in order.
     use rayon::prelude::*;
-    let results: Vec<(usize, Result<Option<Accepted>, Problem>)> = (start..end)
+    type RowResult = Result<Option<Box<Accepted>>, Problem>;
+    let results: Vec<(usize, RowResult)> = (start..end)
         .into_par_iter()
         .with_min_len(1024)
         .filter_map(|r| {
@@ -699,20 +703,28 @@ pub(crate) fn read_rows(ctx: &SheetContext<'_>, rows: &mut Rows) {
             if !any_mapped && grid.row_is_empty(r) {
                 return None;
             }
-            Some((r, read_row(ctx, r)))
+            let mut result = read_row(ctx, r).map(|a| a.map(Box::new));
+            if let Ok(Some(acc)) = &mut result {
+                acc.origin = RowOrigin {
+                    file: ctx.file.to_string(),
+                    sheet: ctx.sheet.to_string(),
+                    row: grid.row_number(r),
+                };
+            }
+            Some((r, result))
         })
         .collect();
     rows.accepted.reserve(results.len());
     rows.seen.reserve(results.len());
     for (r, result) in results {
         rows.counts.read += 1;
-        let origin = RowOrigin {
-            file: ctx.file.to_string(),
-            sheet: ctx.sheet.to_string(),
-            row: grid.row_number(r),
-        };
         match result {
             Err(p) => {
+                let origin = RowOrigin {
+                    file: ctx.file.to_string(),
+                    sheet: ctx.sheet.to_string(),
+                    row: grid.row_number(r),
+                };
                 rows.counts.rejected += 1;
                 rows.rejected.push(Rejection {
                     file: origin.file,
@@ -725,7 +737,7 @@ pub(crate) fn read_rows(ctx: &SheetContext<'_>, rows: &mut Rows) {
                 });
             }
             Ok(None) => rows.counts.outside_period += 1,
-            Ok(Some(mut acc)) => {
+            Ok(Some(acc)) => {
                 let key = (
                     if acc.site.is_empty() {
                         Arc::from(format!(
@@ -739,6 +751,7 @@ pub(crate) fn read_rows(ctx: &SheetContext<'_>, rows: &mut Rows) {
                 );
                 if let Some(&first) = rows.seen.get(&key) {
                     let f = &rows.accepted[first].origin;
+                    let origin = acc.origin;
                     let first_ref = if f.file == origin.file && f.sheet == origin.sheet {
                         format!("row {}", f.row)
                     } else {
@@ -765,7 +778,6 @@ pub(crate) fn read_rows(ctx: &SheetContext<'_>, rows: &mut Rows) {
                     });
                     continue;
                 }
-                acc.origin = origin;
                 rows.seen.insert(key, rows.accepted.len());
                 rows.counts.computed += 1;
                 rows.accepted.push(acc);
