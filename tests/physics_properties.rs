@@ -186,13 +186,21 @@ proptest! {
     }
 
     /// A brighter surface makes the TOA effect of the same aerosol less negative (more
-    /// positive).
+    /// positive), for surfaces up to albedo 0.7 (land, ocean, desert; not fresh snow).
+    ///
+    /// Above that the response is not monotonic, in this model and in nature: with a
+    /// near-conservative aerosol (ω ≳ 0.97) and a high sun (μ₀ ≳ 0.9) the layer backscatters
+    /// the diffuse light coming up from the surface more than the direct beam coming down, so
+    /// its trapping term (1 − A)(A·R_diffuse − R_direct) dominates and shrinks as A → 1
+    /// (measured with `hazebook grid`: the TOA effect first decreases at A ≈ 0.8–0.95 for
+    /// μ₀ = 0.95 and ω ≥ 0.97, never for μ₀ ≤ 0.5 or ω ≤ 0.9). The thin-layer formula of
+    /// Haywood & Shine (1995), monotonic in A, ignores that difference (common practice).
     #[test]
     fn monotonic_in_albedo(
         mu0 in 0.05f64..=1.0, aod in 0.01f64..2.0, g in 0.3f64..0.85, ssa in 0.6f64..=1.0,
-        a_lo in 0.0f64..0.9, step in 0.001f64..0.5,
+        a_lo in 0.0f64..0.5, step in 0.001f64..0.2,
     ) {
-        let a_hi = (a_lo + step).min(1.0);
+        let a_hi = (a_lo + step).min(0.7);
         let s = fixed(mu0);
         let ctx = Context::new(&s);
         let lo = compute_observation(&observation(0, 40.0, 0.0, aod, 1.0, ssa, g, a_lo), &s, &ctx);
