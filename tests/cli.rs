@@ -2,31 +2,12 @@
 //! folder on the bundled (invented) samples and checks exit status, messages and outputs.
 
 use std::path::{Path, PathBuf};
-use std::process::{Command, Output};
+use std::process::Output;
 
+mod binary_support;
+
+use binary_support::{bin, run, samples, text};
 use calamine::{Reader, open_workbook_auto};
-
-fn bin() -> Command {
-    let mut c = Command::new(env!("CARGO_BIN_EXE_hazebook"));
-    c.env_remove("SOURCE_DATE_EPOCH").env("CI", "true");
-    c
-}
-
-fn samples() -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR")).join("sample-inputs")
-}
-
-fn run(args: &[&str], cwd: &Path) -> Output {
-    bin()
-        .args(args)
-        .current_dir(cwd)
-        .output()
-        .expect("binary runs")
-}
-
-fn text(b: &[u8]) -> String {
-    String::from_utf8_lossy(b).into_owned()
-}
 
 fn sha(p: &Path) -> Vec<u8> {
     use sha2::Digest;
@@ -35,6 +16,17 @@ fn sha(p: &Path) -> Vec<u8> {
 
 fn campaign() -> PathBuf {
     samples().join("brinefell-campaign.xlsx")
+}
+
+/// `check --json` counts: rows read = computed + rejected + outside the period.
+fn assert_counts_reconcile(doc: &serde_json::Value) {
+    let c = &doc["counts"];
+    assert_eq!(
+        c["read"].as_u64().unwrap(),
+        c["computed"].as_u64().unwrap()
+            + c["rejected"].as_u64().unwrap()
+            + c["outside_period"].as_u64().unwrap()
+    );
 }
 
 /// The first line of stdout is the report's path.
@@ -207,13 +199,7 @@ fn check_json_lists_rejected_rows_with_cells() {
             .contains("percent")),
         "{rejected:?}"
     );
-    let c = &doc["counts"];
-    assert_eq!(
-        c["read"].as_u64().unwrap(),
-        c["computed"].as_u64().unwrap()
-            + c["rejected"].as_u64().unwrap()
-            + c["outside_period"].as_u64().unwrap()
-    );
+    assert_counts_reconcile(&doc);
 }
 
 #[test]
@@ -539,11 +525,5 @@ fn a_monthly_rerun_rejects_only_rows_it_cannot_place_outside_its_month() {
         cells.contains(&"B47"),
         "unreadable date is rejected: {cells:?}"
     );
-    let c = &doc["counts"];
-    assert_eq!(
-        c["read"].as_u64().unwrap(),
-        c["computed"].as_u64().unwrap()
-            + c["rejected"].as_u64().unwrap()
-            + c["outside_period"].as_u64().unwrap()
-    );
+    assert_counts_reconcile(&doc);
 }

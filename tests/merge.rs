@@ -2,39 +2,20 @@
 //! each runs the real binary in a fresh temporary folder on the bundled (invented) samples.
 
 use std::path::{Path, PathBuf};
-use std::process::{Command, Output};
+use std::process::Output;
 
+mod binary_support;
+
+use binary_support::{run, samples, text};
 use calamine::{Data, Reader, open_workbook_auto};
 
 const SITES: [&str; 3] = ["Brinemouth", "Kelvergate", "Tarnfell"];
-
-fn bin() -> Command {
-    let mut c = Command::new(env!("CARGO_BIN_EXE_hazebook"));
-    c.env_remove("SOURCE_DATE_EPOCH").env("CI", "true");
-    c
-}
-
-fn samples() -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR")).join("sample-inputs")
-}
 
 fn campaign() -> String {
     samples()
         .join("brinefell-campaign.xlsx")
         .to_string_lossy()
         .into_owned()
-}
-
-fn run(args: &[&str], cwd: &Path) -> Output {
-    bin()
-        .args(args)
-        .current_dir(cwd)
-        .output()
-        .expect("binary runs")
-}
-
-fn text(b: &[u8]) -> String {
-    String::from_utf8_lossy(b).into_owned()
 }
 
 /// Paths printed on stdout, one a line.

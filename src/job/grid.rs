@@ -33,9 +33,15 @@ struct Case {
 /// Build, compute and write the table.
 pub fn grid(a: &GridArgs) -> anyhow::Result<Status> {
     let cases = cases(a)?;
+    // The context depends only on the band set and the solar constant, which every case
+    // shares; the cases differ in geometry and aerosol.
+    let ctx = match cases.first() {
+        Some(c) => Context::new(&c.settings),
+        None => return Ok(Status::Success),
+    };
     let results: Vec<ObservationResult> = cases
         .par_iter()
-        .map(|c| compute_observation(&c.obs, &c.settings, &Context::new(&c.settings)))
+        .map(|c| compute_observation(&c.obs, &c.settings, &ctx))
         .collect();
     let csv = to_csv(a, &cases, &results);
     let out = &a.out;

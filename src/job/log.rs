@@ -63,6 +63,16 @@ impl Log {
         self.to_file("ERROR", msg);
     }
 
+    /// Pass a command's outcome through, writing a failure and `what` failed; nothing was
+    /// written` to the log file first (stderr gets the error from `main`).
+    pub fn outcome<T>(&self, what: &str, r: anyhow::Result<T>) -> anyhow::Result<T> {
+        if let Err(e) = &r {
+            self.error(&format!("{e:#}"));
+            self.error(&format!("{what} failed; nothing was written"));
+        }
+        r
+    }
+
     /// A progress bar on a terminal (never under cron, in CI, in quiet mode or in the log).
     pub fn progress(&self, len: u64, what: &str) -> ProgressBar {
         let on_terminal = std::io::stderr().is_terminal() && std::env::var_os("CI").is_none();

@@ -20,7 +20,6 @@ use std::collections::{BTreeMap, HashMap};
 use std::path::{Path, PathBuf};
 
 use anyhow::{Context as _, bail};
-use chrono::{NaiveDate, Utc};
 
 use super::log::Log;
 use super::output::{FolderLock, NameTokens, expand_name, overwrites_input};
@@ -37,22 +36,11 @@ pub const DEFAULT_MERGED_NAME: &str = "{job}-merged-report.xlsx";
 /// Merge partial results into one report; errors are also written to the log file.
 pub fn merge(a: &MergeArgs) -> anyhow::Result<Status> {
     let log = Log::new(a.outputs.quiet, a.outputs.log.as_deref())?;
-    match merge_inner(a, &log) {
-        Ok(s) => Ok(s),
-        Err(e) => {
-            log.error(&format!("{e:#}"));
-            log.error("merge failed; nothing was written");
-            Err(e)
-        }
-    }
+    log.outcome("merge", merge_inner(a, &log))
 }
 
 fn merge_inner(a: &MergeArgs, log: &Log) -> anyhow::Result<Status> {
-    let today = match &a.today {
-        Some(t) => NaiveDate::parse_from_str(t, "%Y-%m-%d")
-            .with_context(|| format!("--today {t:?}: expected a date YYYY-MM-DD"))?,
-        None => Utc::now().date_naive(),
-    };
+    let today = super::period::parse_today(a.today.as_deref()).map_err(anyhow::Error::msg)?;
     refuse_repeats(&a.bundles)?;
     let mut bundles = Vec::with_capacity(a.bundles.len());
     for p in &a.bundles {

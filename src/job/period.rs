@@ -46,6 +46,17 @@ pub fn parse_period(text: &str, today: NaiveDate) -> Result<Period, String> {
     })
 }
 
+/// The reference date of `--today` (YYYY-MM-DD), or today in UTC.
+///
+/// Errors: a message saying what was expected.
+pub fn parse_today(text: Option<&str>) -> Result<NaiveDate, String> {
+    match text {
+        Some(t) => NaiveDate::parse_from_str(t, "%Y-%m-%d")
+            .map_err(|_| format!("--today {t:?}: expected a date YYYY-MM-DD")),
+        None => Ok(Utc::now().date_naive()),
+    }
+}
+
 fn parse_year(y: &str, text: &str) -> Result<i32, String> {
     if y.len() != 4 {
         return Err(expected(text));

@@ -46,11 +46,7 @@ pub fn is_job_file(p: &Path) -> bool {
 ///
 /// Errors: a missing input, a bad job file, a bad period or date, a glob that matches nothing.
 pub fn build(select: &SelectArgs, ov: &Overrides) -> anyhow::Result<Plan> {
-    let today = match &select.today {
-        Some(t) => NaiveDate::parse_from_str(t, "%Y-%m-%d")
-            .with_context(|| format!("--today {t:?}: expected a date YYYY-MM-DD"))?,
-        None => Utc::now().date_naive(),
-    };
+    let today = super::period::parse_today(select.today.as_deref()).map_err(anyhow::Error::msg)?;
     let period = select
         .period
         .as_deref()

@@ -1,5 +1,6 @@
 //! `hazebook run`: the main job.
 
+use std::borrow::Cow;
 use std::path::PathBuf;
 use std::time::Instant;
 
@@ -30,14 +31,7 @@ const CHUNK: usize = 4096;
 /// Run the main job; errors are also written to the log file.
 pub fn run(a: &RunArgs) -> anyhow::Result<Status> {
     let log = Log::new(a.outputs.quiet, a.outputs.log.as_deref())?;
-    match run_inner(a, &log) {
-        Ok(s) => Ok(s),
-        Err(e) => {
-            log.error(&format!("{e:#}"));
-            log.error("run failed; nothing was written");
-            Err(e)
-        }
-    }
+    log.outcome("run", run_inner(a, &log))
 }
 
 fn run_inner(a: &RunArgs, log: &Log) -> anyhow::Result<Status> {
@@ -157,10 +151,12 @@ fn run_inner(a: &RunArgs, log: &Log) -> anyhow::Result<Status> {
                 input.display()
             );
         }
-        let (sub_ing, sub_res) = if site.is_some() {
-            subset(&ing, &results, &mask)?
+        // One report per site needs the site's rows; a single report borrows them all.
+        let (sub_ing, sub_res): (Cow<Ingested>, Cow<[ObservationResult]>) = if site.is_some() {
+            let (i, r) = subset(&ing, &results, &mask)?;
+            (Cow::Owned(i), Cow::Owned(r))
         } else {
-            (ing.clone(), results.clone())
+            (Cow::Borrowed(&ing), Cow::Borrowed(&results))
         };
         let about = About {
             job_name: plan.job_name.clone(),
