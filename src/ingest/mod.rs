@@ -47,6 +47,7 @@ use polars::prelude::*;
 
 pub use resolve::{fit_angstrom, interpolate_ln_wavelength};
 pub use types::*;
+pub use validate::check_observation;
 
 use cells::FillValues;
 use read::{Rows, SheetContext, place};

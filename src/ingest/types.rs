@@ -221,6 +221,9 @@ pub struct Ingested {
     pub assumptions: Vec<Assumption>,
     pub files: Vec<InputFile>,
     pub counts: Counts,
+    /// Accepted rows of other sites left out of a report of some sites (one report per site,
+    /// or `--site`); included in `counts.outside_period`, shown beside it on the About sheet.
+    pub other_sites: usize,
 }
 
 /// A problem that stops the run before anything is written.

@@ -147,6 +147,64 @@ fn range(v: f64, lo: f64, hi: f64, hi_inclusive: bool, text: &str, found: &str) 
     }
 }
 
+/// Check a resolved observation against the same ranges as the cells it is read from (for
+/// observations that come from elsewhere than a workbook, such as a partial-results bundle
+/// given to `hazebook merge`). Returns the first problem, naming the quantity.
+pub fn check_observation(o: &crate::physics::Observation) -> Result<(), String> {
+    use crate::physics::Surface;
+    let mut values: Vec<(Kind, f64)> = vec![
+        (Kind::Latitude, o.latitude_deg),
+        (Kind::Longitude, o.longitude_deg),
+        (Kind::Altitude, o.altitude_m),
+        (Kind::Aod, o.aod),
+        (Kind::Angstrom, o.angstrom),
+        (Kind::Ozone, o.ozone_du),
+        (Kind::Water, o.water_cm),
+        (Kind::LayerTop, o.layer.top_km),
+    ];
+    if let Some(p) = o.pressure_hpa {
+        values.push((Kind::Pressure, p));
+    }
+    if let Surface::Lambertian { albedo } = o.surface {
+        values.push((Kind::Albedo, albedo));
+    }
+    if o.ssa.is_empty() || o.asymmetry.is_empty() {
+        return Err("no single-scattering albedo or asymmetry factor".into());
+    }
+    values.extend(o.ssa.iter().map(|v| (Kind::Ssa, v.value)));
+    values.extend(o.asymmetry.iter().map(|v| (Kind::Asymmetry, v.value)));
+    for (kind, v) in values {
+        let found = format_number(v);
+        if !v.is_finite() {
+            return Err(format!(
+                "{}: expected a finite number, found {found}",
+                kind.name()
+            ));
+        }
+        if let Check::Reject(m) = check(kind, v, &found) {
+            return Err(format!("{}: {m}", kind.name()));
+        }
+    }
+    let wavelengths = std::iter::once(o.aod_wavelength_nm)
+        .chain(o.ssa.iter().chain(&o.asymmetry).map(|v| v.wavelength_nm));
+    for w in wavelengths {
+        if !(w.is_finite() && w > 0.0) {
+            return Err(format!(
+                "wavelength: expected a positive number of nm, found {}",
+                format_number(w)
+            ));
+        }
+    }
+    if !(o.layer.base_km >= 0.0 && o.layer.base_km < o.layer.top_km) {
+        return Err(format!(
+            "aerosol layer: expected 0 ≤ base < top, found base {} km, top {} km",
+            format_number(o.layer.base_km),
+            format_number(o.layer.top_km)
+        ));
+    }
+    Ok(())
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

@@ -22,9 +22,11 @@ use std::path::{Path, PathBuf};
 use anyhow::{Context as _, bail};
 
 use super::log::Log;
-use super::output::{FolderLock, NameTokens, expand_name, overwrites_input};
+use super::output::{self, FolderLock, NameTokens, Staged, expand_name};
 use super::partial::{self, Bundle};
-use super::run::{created_time, site_filter_note};
+use super::run::{
+    created_time, named, report_stale, site_filter_note, staging_error, template_file,
+};
 use crate::cli::{MergeArgs, Status};
 use crate::ingest::{Assumption, Counts, Ingested, InputFile, Rejection};
 use crate::physics::ObservationResult;
@@ -35,7 +37,7 @@ pub const DEFAULT_MERGED_NAME: &str = "{job}-merged-report.xlsx";
 
 /// Merge partial results into one report; errors are also written to the log file.
 pub fn merge(a: &MergeArgs) -> anyhow::Result<Status> {
-    let log = Log::new(a.outputs.quiet, a.outputs.log.as_deref())?;
+    let log = Log::new(a.outputs.quiet, a.outputs.log.as_deref(), &a.bundles)?;
     log.outcome("merge", merge_inner(a, &log))
 }
 
@@ -43,10 +45,24 @@ fn merge_inner(a: &MergeArgs, log: &Log) -> anyhow::Result<Status> {
     let today = super::period::parse_today(a.today.as_deref()).map_err(anyhow::Error::msg)?;
     refuse_repeats(&a.bundles)?;
     let mut bundles = Vec::with_capacity(a.bundles.len());
+    let mut states = Vec::with_capacity(a.bundles.len());
     for p in &a.bundles {
-        bundles.push(partial::read(p)?);
+        let (b, state) = partial::read_checked(p)?;
+        bundles.push(b);
+        states.push(state);
     }
     check_compatible(&a.bundles, &bundles)?;
+    // Edited results and values a run would reject are refused, after the compatibility
+    // checks (whose messages say more about bundles of different runs).
+    for ((p, b), state) in a.bundles.iter().zip(&bundles).zip(states) {
+        let path = p.display().to_string();
+        match state {
+            partial::Integrity::Intact => {}
+            partial::Integrity::Edited => bail!(partial::PartialError::Edited { path }),
+            partial::Integrity::Missing => bail!(partial::PartialError::NoDigest { path }),
+        }
+        partial::validate(p, b)?;
+    }
     let merged = join(&a.bundles, &bundles)?;
     let first = &bundles[0];
     log.info(&format!(
@@ -83,10 +99,6 @@ fn merge_inner(a: &MergeArgs, log: &Log) -> anyhow::Result<Status> {
     )
     .map_err(anyhow::Error::msg)?;
 
-    std::fs::create_dir_all(&out_dir)
-        .with_context(|| format!("{}: cannot create the output folder", out_dir.display()))?;
-    let _lock = FolderLock::acquire(&out_dir)
-        .with_context(|| format!("{}: cannot lock the output folder", out_dir.display()))?;
     let path = out_dir.join(name);
     let side = a.outputs.side_output.map(SideFormat::from).map(|f| {
         let ext = match f {
@@ -95,15 +107,15 @@ fn merge_inner(a: &MergeArgs, log: &Log) -> anyhow::Result<Status> {
         };
         (f, path.with_extension(ext))
     });
-    for target in std::iter::once(&path).chain(side.as_ref().map(|(_, p)| p)) {
-        if let Some(input) = overwrites_input(target, &a.bundles) {
-            bail!(
-                "{}: the output would overwrite the partial results {}; choose another --out folder or --output name",
-                target.display(),
-                input.display()
-            );
-        }
+    let mut outputs: Vec<(&str, PathBuf)> = vec![("report", path.clone())];
+    if let Some((_, p)) = &side {
+        outputs.push(("side output", p.clone()));
     }
+    let mut inputs = a.bundles.clone();
+    inputs.extend(template_file(&template_name));
+    log.add_inputs(&inputs);
+    output::check_outputs(&outputs, &inputs).map_err(anyhow::Error::msg)?;
+    log.confirm(&outputs)?;
 
     let version = if first.hazebook_version == env!("CARGO_PKG_VERSION") {
         first.hazebook_version.clone()
@@ -130,12 +142,19 @@ fn merge_inner(a: &MergeArgs, log: &Log) -> anyhow::Result<Status> {
         mapping: &merged.ingested.mapping,
         about,
     };
-    report::write_report(&path, &tpl, &input)?;
-    let mut written = vec![path];
-    if let Some((fmt, side)) = side {
-        report::write_side_output(&side, fmt, &input)?;
-        written.push(side);
+    std::fs::create_dir_all(&out_dir)
+        .with_context(|| format!("{}: cannot create the output folder", out_dir.display()))?;
+    let lock = FolderLock::acquire(&out_dir)
+        .with_context(|| format!("{}: cannot lock the output folder", out_dir.display()))?;
+    report_stale(&lock, log);
+    let mut staged = Staged::new();
+    let tmp = staged.add(&path).with_context(|| staging_error(&path))?;
+    report::write_report(&tmp, &tpl, &input).map_err(|e| named(e, &path, "report"))?;
+    if let Some((fmt, side)) = &side {
+        let tmp = staged.add(side).with_context(|| staging_error(side))?;
+        report::write_side_output(&tmp, *fmt, &input).map_err(|e| named(e, side, "side output"))?;
     }
+    let written = staged.commit()?;
     for p in &written {
         println!("{}", p.display());
         log.info(&format!("wrote {}", p.display()));
@@ -390,6 +409,7 @@ fn join(paths: &[PathBuf], bundles: &[Bundle]) -> anyhow::Result<Merged> {
         assumptions,
         files,
         counts,
+        other_sites: 0,
     };
     Ok(Merged {
         results: rows.iter().map(|(_, r)| r.result).collect(),

@@ -26,6 +26,9 @@ pub struct Plan {
     pub side_output: Option<SideFormat>,
     pub period: Option<Period>,
     pub today: NaiveDate,
+    /// Inputs found by a glob pattern of `[input] paths` (not named one by one): a run skips
+    /// those that are hazebook's own outputs.
+    pub globbed: Vec<PathBuf>,
 }
 
 /// Command-line values that override the job file.
@@ -94,6 +97,7 @@ fn from_workbook(path: &Path) -> Plan {
         side_output: None,
         period: None,
         today: Utc::now().date_naive(),
+        globbed: Vec::new(),
     }
 }
 
@@ -107,6 +111,7 @@ fn from_job(job: LoadedJob) -> anyhow::Result<Plan> {
         );
     }
     let mut paths = Vec::new();
+    let mut globbed = Vec::new();
     for pattern in &f.input.paths {
         let full = dir.join(pattern);
         let text = full.to_string_lossy().into_owned();
@@ -122,6 +127,7 @@ fn from_job(job: LoadedJob) -> anyhow::Result<Plan> {
                     dir.display()
                 );
             }
+            globbed.extend(found.iter().cloned());
             paths.extend(found);
         } else {
             if !full.exists() {
@@ -172,5 +178,6 @@ fn from_job(job: LoadedJob) -> anyhow::Result<Plan> {
         period: None,
         today: Utc::now().date_naive(),
         job: Some(job),
+        globbed,
     })
 }

@@ -9,7 +9,10 @@ use chrono::{DateTime, TimeZone, Utc};
 use polars::prelude::{BooleanChunked, NewChunkedArray};
 
 use super::log::Log;
-use super::output::{FolderLock, NameTokens, expand_name, overwrites_input};
+use super::output::{
+    self, FolderLock, NameTokens, Staged, expand_name, own_output_kind, same_file, site_file_names,
+    token_value,
+};
 use super::partial;
 use super::plan::{self, Overrides, Plan};
 use super::summary;
@@ -30,7 +33,11 @@ const CHUNK: usize = 4096;
 
 /// Run the main job; errors are also written to the log file.
 pub fn run(a: &RunArgs) -> anyhow::Result<Status> {
-    let log = Log::new(a.outputs.quiet, a.outputs.log.as_deref())?;
+    let log = Log::new(
+        a.outputs.quiet,
+        a.outputs.log.as_deref(),
+        std::slice::from_ref(&a.select.input),
+    )?;
     log.outcome("run", run_inner(a, &log))
 }
 
@@ -40,7 +47,7 @@ fn run_inner(a: &RunArgs, log: &Log) -> anyhow::Result<Status> {
         out: a.out.clone(),
         side_output: a.outputs.side_output.map(Into::into),
     };
-    let plan = plan::build(&a.select, &ov)?;
+    let mut plan = plan::build(&a.select, &ov)?;
     let tpl = template::load(&plan.template)?;
     log.info(&format!(
         "hazebook {} — job {}{}",
@@ -54,6 +61,11 @@ fn run_inner(a: &RunArgs, log: &Log) -> anyhow::Result<Status> {
     if plan.job.is_none() {
         log.info("no job file: built-in defaults and header detection (`hazebook init --from <workbook>` pins them in a job file)");
     }
+
+    skip_own_outputs(&mut plan, a.outputs.log.as_deref(), log)?;
+    // What the run reads; no output may be one of these.
+    let inputs = all_inputs(&plan);
+    log.add_inputs(&inputs);
 
     let t = Instant::now();
     let mut ing = ingest::read_inputs(&plan.spec)?;
@@ -86,6 +98,9 @@ fn run_inner(a: &RunArgs, log: &Log) -> anyhow::Result<Status> {
             ing.counts.read
         );
     }
+    // File-name forms of the sites, from every site read (before a site filter), so that
+    // partitions of one reading agree and no two sites share an output.
+    let site_names = site_file_names(&ing.sites).map_err(anyhow::Error::msg)?;
     let outside_site = if a.sites.is_empty() {
         0
     } else {
@@ -96,15 +111,6 @@ fn run_inner(a: &RunArgs, log: &Log) -> anyhow::Result<Status> {
     let results = compute(&ing, &plan, log);
     let t_physics = t.elapsed().as_secs_f64();
 
-    std::fs::create_dir_all(&plan.out_dir).with_context(|| {
-        format!(
-            "{}: cannot create the output folder",
-            plan.out_dir.display()
-        )
-    })?;
-    let _lock = FolderLock::acquire(&plan.out_dir)
-        .with_context(|| format!("{}: cannot lock the output folder", plan.out_dir.display()))?;
-
     let created = created_time(&ing);
     let tokens = NameTokens {
         job: plan.job_name.clone(),
@@ -112,7 +118,9 @@ fn run_inner(a: &RunArgs, log: &Log) -> anyhow::Result<Status> {
         period: plan.period.as_ref().map(|p| p.label.clone()),
         date: plan.today.format("%Y-%m-%d").to_string(),
     };
-    let site_label = (!a.sites.is_empty()).then(|| a.sites.join("+"));
+    let file_form = |s: &String| site_names.get(s).cloned().unwrap_or_else(|| token_value(s));
+    let site_label =
+        (!a.sites.is_empty()).then(|| a.sites.iter().map(file_form).collect::<Vec<_>>().join("+"));
     let pattern = output_pattern(&plan.output_pattern, site_label.is_some());
     // One report per site only when the output name asks for it.
     let per_site = plan.output_pattern.contains("{site}");
@@ -130,27 +138,78 @@ fn run_inner(a: &RunArgs, log: &Log) -> anyhow::Result<Status> {
     } else {
         vec![(None, vec![true; ing.observations.len()])]
     };
+    // Sites told apart by a suffix, said in the log and on the About sheet.
+    let renamed: Vec<String> = site_names
+        .iter()
+        .filter(|(s, form)| **form != token_value(s) && (per_site || a.sites.contains(s)))
+        .map(|(s, form)| format!("{:?} as {form}", s))
+        .collect();
+    let renamed_note = (!renamed.is_empty()).then(|| {
+        format!(
+            "Sites whose names give the same file name are told apart by a suffix (the first 8 hex digits of the SHA-256 of the name): {}",
+            renamed.join(", ")
+        )
+    });
+    if let Some(n) = &renamed_note {
+        log.warn(n);
+    }
 
-    let mut t_write = 0.0;
-    let mut t_stats = 0.0;
-    let mut written: Vec<PathBuf> = Vec::new();
-    for (site, mask) in groups {
+    // Every output path, checked against the inputs and each other before anything is written.
+    let side_ext = plan.side_output.map(|fmt| match fmt {
+        SideFormat::Csv => "csv",
+        SideFormat::Parquet => "parquet",
+    });
+    let mut reports = Vec::with_capacity(groups.len());
+    let mut outputs: Vec<(&str, PathBuf)> = Vec::new();
+    for (site, _) in &groups {
         let name = expand_name(
             &pattern,
             &NameTokens {
-                site: site.clone().or_else(|| site_label.clone()),
+                site: site.as_ref().map(file_form).or_else(|| site_label.clone()),
                 ..tokens.clone()
             },
         )
         .map_err(anyhow::Error::msg)?;
         let path = plan.out_dir.join(&name);
-        if let Some(input) = overwrites_input(&path, &plan.spec.paths) {
-            bail!(
-                "{}: the output would overwrite the input {}; choose another --out folder or [report] output name",
-                path.display(),
-                input.display()
-            );
+        outputs.push(("report", path.clone()));
+        if let Some(ext) = side_ext {
+            outputs.push(("side output", path.with_extension(ext)));
         }
+        reports.push(path);
+    }
+    let bundle_path = if a.partial {
+        let name = expand_name(
+            &pattern,
+            &NameTokens {
+                site: site_label.clone(),
+                ..tokens.clone()
+            },
+        )
+        .map_err(anyhow::Error::msg)?;
+        let path = plan.out_dir.join(name).with_extension("partial.json");
+        outputs.push(("partial results", path.clone()));
+        Some(path)
+    } else {
+        None
+    };
+    output::check_outputs(&outputs, &inputs).map_err(anyhow::Error::msg)?;
+    log.confirm(&outputs)?;
+
+    std::fs::create_dir_all(&plan.out_dir).with_context(|| {
+        format!(
+            "{}: cannot create the output folder",
+            plan.out_dir.display()
+        )
+    })?;
+    let lock = FolderLock::acquire(&plan.out_dir)
+        .with_context(|| format!("{}: cannot lock the output folder", plan.out_dir.display()))?;
+    report_stale(&lock, log);
+
+    // Every output goes to a temporary file first; all are renamed into place at the end.
+    let mut staged = Staged::new();
+    let mut t_write = 0.0;
+    let mut t_stats = 0.0;
+    for ((site, mask), path) in groups.into_iter().zip(&reports) {
         // One report per site needs the site's rows; a single report borrows them all.
         let (sub_ing, sub_res): (Cow<Ingested>, Cow<[ObservationResult]>) = if site.is_some() {
             let (i, r) = subset(&ing, &results, &mask)?;
@@ -172,6 +231,7 @@ fn run_inner(a: &RunArgs, log: &Log) -> anyhow::Result<Status> {
                         "More than {LARGE_REPORT_ROWS} results: the workbook is compressed at zip level {LARGE_REPORT_ZIP_LEVEL} for speed (about a quarter larger than at the default level 6)."
                     ));
                 }
+                n.extend(renamed_note.clone());
                 n
             },
         };
@@ -191,44 +251,30 @@ fn run_inner(a: &RunArgs, log: &Log) -> anyhow::Result<Status> {
             },
             ..WriteOptions::default()
         };
-        report::write_report_with(&path, &tpl, &input, &options)?;
+        let tmp = staged.add(path).with_context(|| staging_error(path))?;
+        report::write_report_with(&tmp, &tpl, &input, &options)
+            .map_err(|e| named(e, path, "report"))?;
         t_write += t.elapsed().as_secs_f64();
-        written.push(path.clone());
-        if let Some(fmt) = plan.side_output {
-            let ext = match fmt {
-                SideFormat::Csv => "csv",
-                SideFormat::Parquet => "parquet",
-            };
+        if let (Some(fmt), Some(ext)) = (plan.side_output, side_ext) {
             let side = path.with_extension(ext);
             let t = Instant::now();
-            report::write_side_output(&side, fmt, &input)?;
+            let tmp = staged.add(&side).with_context(|| staging_error(&side))?;
+            report::write_side_output(&tmp, fmt, &input)
+                .map_err(|e| named(e, &side, "side output"))?;
             t_stats += t.elapsed().as_secs_f64();
-            written.push(side);
         }
     }
-    if a.partial {
-        let name = expand_name(
-            &pattern,
-            &NameTokens {
-                site: site_label.clone(),
-                ..tokens.clone()
-            },
-        )
-        .map_err(anyhow::Error::msg)?;
-        let path = plan.out_dir.join(name).with_extension("partial.json");
-        if let Some(input) = overwrites_input(&path, &plan.spec.paths) {
-            bail!(
-                "{}: the partial results would overwrite the input {}; choose another --out folder",
-                path.display(),
-                input.display()
-            );
-        }
+    if let Some(path) = &bundle_path {
         let t = Instant::now();
         let bundle = bundle(&plan, &ing, &results, &a.sites, outside_site);
-        partial::write(&path, &bundle)?;
+        let bytes = partial::to_bytes(path, &bundle)?;
+        let tmp = staged.add(path).with_context(|| staging_error(path))?;
+        std::fs::write(&tmp, bytes)
+            .with_context(|| format!("{}: cannot write the partial results", path.display()))?;
         t_write += t.elapsed().as_secs_f64();
-        written.push(path);
     }
+    let written = staged.commit()?;
+    drop(lock);
     for p in &written {
         println!("{}", p.display());
         log.info(&format!("wrote {}", p.display()));
@@ -299,7 +345,11 @@ fn subset(
         row_warnings: pick(&ing.row_warnings, mask),
         ..ing.clone()
     };
+    // The rows of other sites are this report's "outside" rows, so that it reconciles.
+    let left_out = ing.observations.len() - sub.observations.len();
     sub.counts.computed = sub.observations.len();
+    sub.counts.outside_period += left_out;
+    sub.other_sites += left_out;
     Ok((sub, pick(results, mask)))
 }
 
@@ -371,7 +421,6 @@ fn filter_sites(ing: &mut Ingested, sites: &[String], log: &Log) -> anyhow::Resu
     let removed = ing.sites.len() - kept;
     let (sub, _) = subset(ing, &[], &mask)?;
     *ing = sub;
-    ing.counts.outside_period += removed;
     log.info(&format!(
         "site filter {}: {kept} rows kept, {removed} rows of other sites counted as outside",
         sites.join(", ")
@@ -415,6 +464,91 @@ fn bundle(
         assumptions: ing.assumptions.clone(),
         counts: ing.counts,
         outside_site,
+        content_sha256: None,
+    }
+}
+
+/// Every file a run reads: the inputs, the job file and a template file.
+fn all_inputs(plan: &Plan) -> Vec<PathBuf> {
+    let mut v = plan.spec.paths.clone();
+    v.extend(plan.job.as_ref().map(|j| j.path.clone()));
+    v.extend(template_file(&plan.template));
+    v
+}
+
+/// The template's file, when the template is not a built-in one.
+pub(super) fn template_file(name: &str) -> Option<PathBuf> {
+    let builtin = template::builtin().iter().any(|(n, _, _)| *n == name);
+    (!builtin && std::path::Path::new(name).is_file()).then(|| PathBuf::from(name))
+}
+
+/// Leave out of the inputs the files a glob of `[input] paths` matched that are hazebook's
+/// own outputs (a report, a side output, partial results — judged by content — or the log
+/// file), with a warning naming each. A file named one by one is always read (and a run
+/// that would write over it stops before writing).
+///
+/// Errors: every match of the globs was left out.
+fn skip_own_outputs(
+    plan: &mut Plan,
+    log_file: Option<&std::path::Path>,
+    log: &Log,
+) -> anyhow::Result<()> {
+    let before = plan.spec.paths.len();
+    let globbed = std::mem::take(&mut plan.globbed);
+    plan.spec.paths.retain(|p| {
+        if !globbed.contains(p) {
+            return true;
+        }
+        let kind = if log_file.is_some_and(|l| same_file(l, p)) {
+            Some("the log file")
+        } else {
+            own_output_kind(p)
+        };
+        match kind {
+            Some(k) => {
+                log.warn(&format!(
+                    "{}: skipped, a hazebook output ({k}) matched by a glob in [input] paths; name it in paths to read it",
+                    p.display()
+                ));
+                false
+            }
+            None => true,
+        }
+    });
+    if plan.spec.paths.is_empty() {
+        bail!(
+            "[input] paths: the {before} files matched are all hazebook outputs (skipped, see the warnings); nothing to read"
+        );
+    }
+    Ok(())
+}
+
+/// Log the removal of temporary files that killed runs left in the output folder.
+pub(super) fn report_stale(lock: &FolderLock, log: &Log) {
+    let removed = lock.remove_stale_temporaries();
+    if !removed.is_empty() {
+        log.info(&format!(
+            "removed {} temporary files left by earlier interrupted runs: {}",
+            removed.len(),
+            removed.join(", ")
+        ));
+    }
+}
+
+pub(super) fn staging_error(target: &std::path::Path) -> String {
+    format!(
+        "{}: cannot create a temporary file in its folder",
+        target.display()
+    )
+}
+
+/// A writing error named by the final path rather than its temporary file.
+pub(super) fn named(e: report::ReportError, target: &std::path::Path, what: &str) -> anyhow::Error {
+    match e {
+        report::ReportError::Write { reason, .. } => {
+            anyhow::anyhow!("{}: cannot write the {what}: {reason}", target.display())
+        }
+        other => other.into(),
     }
 }
 

@@ -181,12 +181,18 @@ pub fn write_about(
     section(ws, &mut cur, "Rows")?;
     let c = ing.counts;
     let holds = c.read == c.computed + c.rejected + c.outside_period;
-    for (k, v) in [
+    let mut count_rows = vec![
         ("Rows read", c.read),
         ("Computed (Results)", c.computed),
         ("Rejected (Rejected sheet)", c.rejected),
         ("Outside the period", c.outside_period),
-    ] {
+    ];
+    if ing.other_sites > 0 {
+        // Rows of the other sites of a per-site report or a site filter: part of the
+        // "outside" count above, so that each report reconciles its own rows.
+        count_rows.push(("of which rows of other sites", ing.other_sites));
+    }
+    for (k, v) in count_rows {
         ws.write_string_with_format(cur.r, 0, k, &styles.label)?;
         ws.write_number_with_format(cur.r, 1, v as f64, styles.class(super::frame::Class::Count))?;
         cur.r += 1;
