@@ -88,14 +88,16 @@ fn merge_inner(a: &MergeArgs, log: &Log) -> anyhow::Result<Status> {
     let _lock = FolderLock::acquire(&out_dir)
         .with_context(|| format!("{}: cannot lock the output folder", out_dir.display()))?;
     let path = out_dir.join(name);
-    let side = a.outputs.side_output.map(SideFormat::from).map(|f| {
-        let ext = match f {
-            SideFormat::Csv => "csv",
-            SideFormat::Parquet => "parquet",
-        };
-        (f, path.with_extension(ext))
-    });
-    for target in std::iter::once(&path).chain(side.as_ref().map(|(_, p)| p)) {
+    let side = a
+        .outputs
+        .side_output
+        .map(SideFormat::from)
+        .map(|f| (f, path.with_extension(f.extension())));
+    let side_files = side
+        .as_ref()
+        .map(|(f, p)| report::side_files(p, *f))
+        .unwrap_or_default();
+    for target in std::iter::once(&path).chain(&side_files) {
         if let Some(input) = overwrites_input(target, &a.bundles) {
             bail!(
                 "{}: the output would overwrite the partial results {}; choose another --out folder or --output name",
@@ -130,11 +132,26 @@ fn merge_inner(a: &MergeArgs, log: &Log) -> anyhow::Result<Status> {
         mapping: &merged.ingested.mapping,
         about,
     };
+    if side.as_ref().is_some_and(|(f, _)| *f == SideFormat::Netcdf) && input.results.is_empty() {
+        bail!(
+            "the bundles hold no computed row: the NetCDF side output needs at least one; nothing written. Rerun without --side-output netcdf"
+        );
+    }
     report::write_report(&path, &tpl, &input)?;
     let mut written = vec![path];
     if let Some((fmt, side)) = side {
-        report::write_side_output(&side, fmt, &input)?;
-        written.push(side);
+        let meta = report::SideMeta {
+            command: Some(report::side::command_line()),
+            // The runs' job file, when they had one, names the institution.
+            institution: input
+                .about
+                .job_text
+                .as_deref()
+                .and_then(|t| toml::from_str::<super::config::JobFile>(t).ok())
+                .and_then(|j| j.report.institution),
+        };
+        report::write_side_output_with(&side, fmt, &input, &meta)?;
+        written.extend(side_files);
     }
     for p in &written {
         println!("{}", p.display());

@@ -17,7 +17,7 @@ use crate::cli::{RunArgs, Status};
 use crate::ingest::{self, Ingested};
 use crate::physics::ObservationResult;
 use crate::physics::forcing::{Context, compute_batch_with_context};
-use crate::report::{self, About, ReportInput, SideFormat, WriteOptions, template};
+use crate::report::{self, About, ReportInput, SideFormat, SideMeta, WriteOptions, template};
 
 /// Above this many results the workbook is compressed faster (zip level 1): most of a large
 /// write is deflate, and level 1 writes 100,000 results about 40 % faster for a file about a
@@ -92,6 +92,11 @@ fn run_inner(a: &RunArgs, log: &Log) -> anyhow::Result<Status> {
         filter_sites(&mut ing, &a.sites, log)?
     };
 
+    if plan.side_output == Some(SideFormat::Netcdf) && ing.observations.is_empty() {
+        bail!(
+            "every row was rejected: the NetCDF side output needs at least one computed row; nothing written. Fix the rows listed above, or rerun without --side-output netcdf to get the report with its Rejected sheet"
+        );
+    }
     let t = Instant::now();
     let results = compute(&ing, &plan, log);
     let t_physics = t.elapsed().as_secs_f64();
@@ -195,15 +200,28 @@ fn run_inner(a: &RunArgs, log: &Log) -> anyhow::Result<Status> {
         t_write += t.elapsed().as_secs_f64();
         written.push(path.clone());
         if let Some(fmt) = plan.side_output {
-            let ext = match fmt {
-                SideFormat::Csv => "csv",
-                SideFormat::Parquet => "parquet",
+            let side = path.with_extension(fmt.extension());
+            let files = report::side_files(&side, fmt);
+            for f in &files {
+                if let Some(input) = overwrites_input(f, &plan.spec.paths) {
+                    bail!(
+                        "{}: the side output would overwrite the input {}; choose another --out folder or [report] output name",
+                        f.display(),
+                        input.display()
+                    );
+                }
+            }
+            let meta = SideMeta {
+                command: Some(report::side::command_line()),
+                institution: plan
+                    .job
+                    .as_ref()
+                    .and_then(|j| j.file.report.institution.clone()),
             };
-            let side = path.with_extension(ext);
             let t = Instant::now();
-            report::write_side_output(&side, fmt, &input)?;
+            report::write_side_output_with(&side, fmt, &input, &meta)?;
             t_stats += t.elapsed().as_secs_f64();
-            written.push(side);
+            written.extend(files);
         }
     }
     if a.partial {
