@@ -125,7 +125,8 @@ pub struct MergeArgs {
 /// Side outputs and messages, shared by `run` and `merge`.
 #[derive(Debug, Args, Clone)]
 pub struct OutputArgs {
-    /// Also write the results at full precision as csv or parquet.
+    /// Also write the results at full precision as csv (units in the column names), parquet,
+    /// or CF-1.8 NetCDF (`.nc` with every row, `.summary.nc` with the site × month statistics).
     #[arg(long, value_enum)]
     pub side_output: Option<SideOutputArg>,
     /// Append log lines to this file (timestamps, counts, outputs, problems).
@@ -140,6 +141,7 @@ pub struct OutputArgs {
 pub enum SideOutputArg {
     Csv,
     Parquet,
+    Netcdf,
 }
 
 impl From<SideOutputArg> for SideFormat {
@@ -147,6 +149,7 @@ impl From<SideOutputArg> for SideFormat {
         match v {
             SideOutputArg::Csv => SideFormat::Csv,
             SideOutputArg::Parquet => SideFormat::Parquet,
+            SideOutputArg::Netcdf => SideFormat::Netcdf,
         }
     }
 }

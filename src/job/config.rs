@@ -143,6 +143,8 @@ pub struct ReportSection {
     pub folder: Option<String>,
     /// Results at full precision beside the workbook.
     pub side_output: Option<SideFormat>,
+    /// Institution that produced the results (the NetCDF `institution` attribute).
+    pub institution: Option<String>,
 }
 
 impl Default for ReportSection {
@@ -152,6 +154,7 @@ impl Default for ReportSection {
             output: DEFAULT_OUTPUT_NAME.into(),
             folder: None,
             side_output: None,
+            institution: None,
         }
     }
 }

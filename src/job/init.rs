@@ -149,7 +149,8 @@ daily_mean = true
 template = "full"            # built-in (hazebook templates) or a file, e.g. "report-template.toml"
 output = "{{job}}-{{period}}-report.xlsx"   # tokens: {{job}} {{site}} {{period}} {{date}}
 # folder = "reports"
-# side_output = "csv"        # or "parquet": results at full precision
+# side_output = "csv"        # or "parquet", or "netcdf" (CF-1.8): results at full precision
+# institution = ""           # recorded in the NetCDF side output
 "#
     )
 }

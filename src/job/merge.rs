@@ -100,16 +100,16 @@ fn merge_inner(a: &MergeArgs, log: &Log) -> anyhow::Result<Status> {
     .map_err(anyhow::Error::msg)?;
 
     let path = out_dir.join(name);
-    let side = a.outputs.side_output.map(SideFormat::from).map(|f| {
-        let ext = match f {
-            SideFormat::Csv => "csv",
-            SideFormat::Parquet => "parquet",
-        };
-        (f, path.with_extension(ext))
-    });
+    let side = a
+        .outputs
+        .side_output
+        .map(SideFormat::from)
+        .map(|f| (f, path.with_extension(f.extension())));
     let mut outputs: Vec<(&str, PathBuf)> = vec![("report", path.clone())];
-    if let Some((_, p)) = &side {
-        outputs.push(("side output", p.clone()));
+    if let Some((f, p)) = &side {
+        for file in report::side_files(p, *f) {
+            outputs.push(("side output", file));
+        }
     }
     let mut inputs = a.bundles.clone();
     inputs.extend(template_file(&template_name));
@@ -142,6 +142,11 @@ fn merge_inner(a: &MergeArgs, log: &Log) -> anyhow::Result<Status> {
         mapping: &merged.ingested.mapping,
         about,
     };
+    if side.as_ref().is_some_and(|(f, _)| *f == SideFormat::Netcdf) && input.results.is_empty() {
+        bail!(
+            "the bundles hold no computed row: the NetCDF side output needs at least one; nothing written. Rerun without --side-output netcdf"
+        );
+    }
     std::fs::create_dir_all(&out_dir)
         .with_context(|| format!("{}: cannot create the output folder", out_dir.display()))?;
     let lock = FolderLock::acquire(&out_dir)
@@ -151,8 +156,22 @@ fn merge_inner(a: &MergeArgs, log: &Log) -> anyhow::Result<Status> {
     let tmp = staged.add(&path).with_context(|| staging_error(&path))?;
     report::write_report(&tmp, &tpl, &input).map_err(|e| named(e, &path, "report"))?;
     if let Some((fmt, side)) = &side {
-        let tmp = staged.add(side).with_context(|| staging_error(side))?;
-        report::write_side_output(&tmp, *fmt, &input).map_err(|e| named(e, side, "side output"))?;
+        let meta = report::SideMeta {
+            command: Some(report::side::command_line()),
+            // The runs' job file, when they had one, names the institution.
+            institution: input
+                .about
+                .job_text
+                .as_deref()
+                .and_then(|t| toml::from_str::<super::config::JobFile>(t).ok())
+                .and_then(|j| j.report.institution),
+        };
+        let mut tmps = Vec::new();
+        for f in report::side_files(side, *fmt) {
+            tmps.push(staged.add(&f).with_context(|| staging_error(&f))?);
+        }
+        report::write_side_staged(&tmps, side, *fmt, &input, &meta)
+            .map_err(|e| named(e, side, "side output"))?;
     }
     let written = staged.commit()?;
     for p in &written {

@@ -20,7 +20,7 @@ use crate::cli::{RunArgs, Status};
 use crate::ingest::{self, Ingested};
 use crate::physics::ObservationResult;
 use crate::physics::forcing::{Context, compute_batch_with_context};
-use crate::report::{self, About, ReportInput, SideFormat, WriteOptions, template};
+use crate::report::{self, About, ReportInput, SideFormat, SideMeta, WriteOptions, template};
 
 /// Above this many results the workbook is compressed faster (zip level 1): most of a large
 /// write is deflate, and level 1 writes 100,000 results about 40 % faster for a file about a
@@ -107,6 +107,11 @@ fn run_inner(a: &RunArgs, log: &Log) -> anyhow::Result<Status> {
         filter_sites(&mut ing, &a.sites, log)?
     };
 
+    if plan.side_output == Some(SideFormat::Netcdf) && ing.observations.is_empty() {
+        bail!(
+            "every row was rejected: the NetCDF side output needs at least one computed row; nothing written. Fix the rows listed above, or rerun without --side-output netcdf to get the report with its Rejected sheet"
+        );
+    }
     let t = Instant::now();
     let results = compute(&ing, &plan, log);
     let t_physics = t.elapsed().as_secs_f64();
@@ -155,10 +160,6 @@ fn run_inner(a: &RunArgs, log: &Log) -> anyhow::Result<Status> {
     }
 
     // Every output path, checked against the inputs and each other before anything is written.
-    let side_ext = plan.side_output.map(|fmt| match fmt {
-        SideFormat::Csv => "csv",
-        SideFormat::Parquet => "parquet",
-    });
     let mut reports = Vec::with_capacity(groups.len());
     let mut outputs: Vec<(&str, PathBuf)> = Vec::new();
     for (site, _) in &groups {
@@ -172,8 +173,10 @@ fn run_inner(a: &RunArgs, log: &Log) -> anyhow::Result<Status> {
         .map_err(anyhow::Error::msg)?;
         let path = plan.out_dir.join(&name);
         outputs.push(("report", path.clone()));
-        if let Some(ext) = side_ext {
-            outputs.push(("side output", path.with_extension(ext)));
+        if let Some(fmt) = plan.side_output {
+            for f in report::side_files(&path.with_extension(fmt.extension()), fmt) {
+                outputs.push(("side output", f));
+            }
         }
         reports.push(path);
     }
@@ -255,11 +258,21 @@ fn run_inner(a: &RunArgs, log: &Log) -> anyhow::Result<Status> {
         report::write_report_with(&tmp, &tpl, &input, &options)
             .map_err(|e| named(e, path, "report"))?;
         t_write += t.elapsed().as_secs_f64();
-        if let (Some(fmt), Some(ext)) = (plan.side_output, side_ext) {
-            let side = path.with_extension(ext);
+        if let Some(fmt) = plan.side_output {
+            let side = path.with_extension(fmt.extension());
+            let meta = SideMeta {
+                command: Some(report::side::command_line()),
+                institution: plan
+                    .job
+                    .as_ref()
+                    .and_then(|j| j.file.report.institution.clone()),
+            };
             let t = Instant::now();
-            let tmp = staged.add(&side).with_context(|| staging_error(&side))?;
-            report::write_side_output(&tmp, fmt, &input)
+            let mut tmps = Vec::new();
+            for f in report::side_files(&side, fmt) {
+                tmps.push(staged.add(&f).with_context(|| staging_error(&f))?);
+            }
+            report::write_side_staged(&tmps, &side, fmt, &input, &meta)
                 .map_err(|e| named(e, &side, "side output"))?;
             t_stats += t.elapsed().as_secs_f64();
         }

@@ -1,5 +1,6 @@
 //! Report workbooks from templates: Results, grouped statistics, forcing-efficiency
-//! regressions, charts, About and Rejected sheets; Parquet or CSV side output.
+//! regressions, charts, About and Rejected sheets; CSV, Parquet or NetCDF side output
+//! ([`side`]).
 //!
 //! Entry points: [`template::load`] (a built-in name or a TOML file), [`write_report`]
 //! (or [`write_report_with`] for a smaller worksheet row limit) and [`write_side_output`].
@@ -40,11 +41,16 @@ use crate::physics::{ObservationResult, Settings};
 pub mod about;
 pub mod charts;
 pub mod frame;
+pub mod side;
 pub mod stats;
 pub mod template;
 pub mod xlsx;
 
-use frame::{Class, Row, Value};
+use frame::{Row, Value};
+pub use side::{
+    SideFormat, SideMeta, results_frame, side_files, write_side_output, write_side_output_with,
+    write_side_staged,
+};
 use template::{SheetKind, Template};
 use xlsx::{EfficiencyBlock, Group, Styles};
 
@@ -76,14 +82,6 @@ pub struct ReportInput<'a> {
     pub settings: &'a Settings,
     pub mapping: &'a [MappedColumn],
     pub about: About,
-}
-
-/// Machine-readable side output of the Results table.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
-#[serde(rename_all = "kebab-case")]
-pub enum SideFormat {
-    Csv,
-    Parquet,
 }
 
 /// A problem writing a report.
@@ -473,95 +471,4 @@ fn build_workbook(
         first.set_active(true);
     }
     Ok(wb)
-}
-
-/// The Results table (every available column) as a polars frame at full precision: numbers
-/// as Float64 (null where not finite), times as Datetime[ms] (UTC), text as String.
-pub fn results_frame(input: &ReportInput) -> Result<DataFrame, ReportError> {
-    let rows = build_rows(input)?;
-    let cols = frame::available(frame::columns().iter().collect(), input.settings);
-    let polars_err = |e: PolarsError| ReportError::Input {
-        message: format!("building the results table: {e}"),
-    };
-    let mut out: Vec<Column> = Vec::with_capacity(cols.len());
-    for c in cols {
-        let name: PlSmallStr = c.key.as_str().into();
-        let col = match c.class {
-            Class::Text => {
-                let v: Vec<Option<String>> = rows
-                    .iter()
-                    .map(|r| match c.value(r) {
-                        Value::Text(s) => Some(s.into_owned()),
-                        _ => None,
-                    })
-                    .collect();
-                Column::new(name, v)
-            }
-            Class::Time => {
-                let v: Vec<Option<i64>> = rows
-                    .iter()
-                    .map(|r| match c.value(r) {
-                        Value::Time(ms) => Some(ms),
-                        _ => None,
-                    })
-                    .collect();
-                Column::new(name, v)
-                    .cast(&DataType::Datetime(TimeUnit::Milliseconds, None))
-                    .map_err(polars_err)?
-            }
-            Class::Count => {
-                let v: Vec<Option<i64>> = rows
-                    .iter()
-                    .map(|r| {
-                        let x = c.number(r);
-                        x.is_finite().then_some(x as i64)
-                    })
-                    .collect();
-                Column::new(name, v)
-            }
-            _ => {
-                let v: Vec<Option<f64>> = rows
-                    .iter()
-                    .map(|r| {
-                        let x = c.number(r);
-                        x.is_finite().then_some(x)
-                    })
-                    .collect();
-                Column::new(name, v)
-            }
-        };
-        out.push(col);
-    }
-    DataFrame::new(rows.len(), out).map_err(polars_err)
-}
-
-/// Write the Results table at full precision as CSV or Parquet (atomically: a temporary
-/// file in the same folder, renamed into place when complete).
-///
-/// Errors: [`ReportError::Write`] when the folder is not writable.
-pub fn write_side_output(
-    path: &Path,
-    format: SideFormat,
-    input: &ReportInput,
-) -> Result<(), ReportError> {
-    let mut df = results_frame(input)?;
-    let mut tmp = temp_beside(path).map_err(|e| write_error(path, e))?;
-    {
-        let mut w = BufWriter::new(tmp.as_file_mut());
-        match format {
-            SideFormat::Csv => CsvWriter::new(&mut w)
-                .with_datetime_format(Some("%Y-%m-%dT%H:%M:%SZ".into()))
-                .finish(&mut df)
-                .map_err(|e| write_error(path, e))?,
-            SideFormat::Parquet => {
-                ParquetWriter::new(&mut w)
-                    .finish(&mut df)
-                    .map_err(|e| write_error(path, e))?;
-            }
-        }
-        w.flush().map_err(|e| write_error(path, e))?;
-    }
-    tmp.as_file().sync_all().map_err(|e| write_error(path, e))?;
-    tmp.persist(path).map_err(|e| write_error(path, e.error))?;
-    Ok(())
 }
