@@ -147,7 +147,7 @@ fn run_inner(a: &RunArgs, log: &Log) -> anyhow::Result<Status> {
     let renamed: Vec<String> = site_names
         .iter()
         .filter(|(s, form)| **form != token_value(s) && (per_site || a.sites.contains(s)))
-        .map(|(s, form)| format!("{:?} as {form}", s))
+        .map(|(s, form)| format!("{s:?} as {form}"))
         .collect();
     let renamed_note = (!renamed.is_empty()).then(|| {
         format!(
