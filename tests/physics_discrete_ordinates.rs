@@ -476,4 +476,79 @@ mod driver {
             assert!(worst < bound, "{method:?} {n}: {worst}");
         }
     }
+
+    /// `error_estimate`: the error columns are two-stream minus discrete ordinates, whichever
+    /// solver produces the main columns, and NaN when the estimate is off.
+    #[test]
+    fn error_estimate_is_two_stream_minus_accurate() {
+        let o = observation(0.5, 0.9, 0.7, 0.2);
+        let base = Settings {
+            daily_mean: true,
+            fixed_cos_zenith: Some(0.5),
+            ..settings(Method::TwoStream, 4, None)
+        };
+        let run = |s: &Settings| compute_observation(&o, s, &Context::new(s));
+        let ts = run(&base);
+        let dom = run(&Settings {
+            method: Method::DiscreteOrdinates,
+            ..base.clone()
+        });
+        assert!(ts.solver_error.dre_toa.is_nan() && ts.solver_error.dre_sfc_24h.is_nan());
+        let want = [
+            ts.instantaneous.dre_toa - dom.instantaneous.dre_toa,
+            ts.instantaneous.dre_sfc - dom.instantaneous.dre_sfc,
+            ts.daily.dre_toa - dom.daily.dre_toa,
+            ts.daily.dre_atm - dom.daily.dre_atm,
+        ];
+        assert!(want[0].abs() > 1e-3, "the solvers differ: {want:?}");
+        for method in [Method::TwoStream, Method::DiscreteOrdinates] {
+            let r = run(&Settings {
+                method,
+                error_estimate: true,
+                ..base.clone()
+            });
+            let e = r.solver_error;
+            let got = [e.dre_toa, e.dre_sfc, e.dre_toa_24h, e.dre_atm_24h];
+            for (g, w) in got.iter().zip(&want) {
+                assert!(
+                    (g - w).abs() < 1e-9 * w.abs().max(1.0),
+                    "{method:?}: {got:?} vs {want:?}"
+                );
+            }
+        }
+    }
+
+    /// `rayleigh_above_tau` (grid `--rayleigh-above`): the aerosol-free column is one purely
+    /// molecular layer of that optical depth over the surface.
+    #[test]
+    fn molecular_layer_above_the_aerosol() {
+        use hazebook::physics::discrete_ordinates::{ScatteringLayer, solve_column};
+        let o = observation(0.3, 0.9, 0.7, 0.2);
+        let s = Settings {
+            rayleigh_above_tau: Some(0.3),
+            ..settings(Method::DiscreteOrdinates, 8, Some(0.5))
+        };
+        let r = compute_observation(&o, &s, &Context::new(&s));
+        let clean = r.instantaneous.clean;
+        let alone = solve_column(
+            &[ScatteringLayer {
+                tau: 0.3,
+                ssa: 1.0,
+                rayleigh_share: 1.0,
+                aerosol_g: 0.0,
+            }],
+            0.5,
+            0.2,
+            8,
+            true,
+        );
+        let up = clean.toa_up / clean.toa_down;
+        assert!(
+            (up - alone.toa_up).abs() < 1e-12,
+            "{up} vs {}",
+            alone.toa_up
+        );
+        assert!(up > 0.2 + 0.01, "molecules reflect: {up}");
+        assert!(r.instantaneous.dre_toa.is_finite());
+    }
 }
