@@ -9,7 +9,7 @@ use std::path::PathBuf;
 use clap::{Args, Parser, Subcommand};
 
 use crate::job;
-use crate::physics::Closure;
+use crate::physics::{Closure, Method};
 use crate::report::SideFormat;
 
 const EXIT_HELP: &str = "Exit status:
@@ -230,6 +230,18 @@ pub struct GridArgs {
     /// Two-stream closure.
     #[arg(long, value_enum, default_value = "delta-eddington")]
     pub closure: ClosureArg,
+    /// Flux solver: the two-stream closure of --closure, or discrete ordinates (delta-M)
+    /// with --streams streams.
+    #[arg(long, value_enum, default_value = "two-stream")]
+    pub solver: SolverArg,
+    /// Streams of the discrete-ordinate solver (even, 2–64).
+    #[arg(long, default_value_t = crate::physics::DEFAULT_STREAMS)]
+    pub streams: usize,
+    /// A purely molecular layer (Rayleigh phase function, no absorption) of this optical
+    /// depth above the aerosol layer, which then holds no molecules (single band only;
+    /// instead of --rayleigh).
+    #[arg(long, conflicts_with_all = ["rayleigh", "spectral"])]
+    pub rayleigh_above: Option<f64>,
     /// Solar constant [W m⁻²].
     #[arg(long, default_value_t = 1361.0)]
     pub solar_constant: f64,
@@ -255,6 +267,21 @@ impl From<ClosureArg> for Closure {
             ClosureArg::Quadrature => Closure::Quadrature,
             ClosureArg::HemisphericMean => Closure::HemisphericMean,
             ClosureArg::Pifm => Closure::Pifm,
+        }
+    }
+}
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq, clap::ValueEnum)]
+pub enum SolverArg {
+    TwoStream,
+    DiscreteOrdinates,
+}
+
+impl From<SolverArg> for Method {
+    fn from(s: SolverArg) -> Self {
+        match s {
+            SolverArg::TwoStream => Method::TwoStream,
+            SolverArg::DiscreteOrdinates => Method::DiscreteOrdinates,
         }
     }
 }

@@ -9,7 +9,8 @@ use std::path::{Path, PathBuf};
 use serde::Deserialize;
 
 use crate::ingest::{AtmosphereDefaults, SiteInfo};
-use crate::physics::{BandSet, Closure, Settings};
+use crate::physics::discrete_ordinates::MAX_STREAMS;
+use crate::physics::{BandSet, Closure, Method, Settings};
 use crate::report::SideFormat;
 
 /// A problem with a job file: stops the run before anything is read or written.
@@ -74,6 +75,12 @@ pub struct SolverSection {
     pub fixed_cos_zenith: Option<f64>,
     pub earth_sun_distance: bool,
     pub daily_mean: bool,
+    /// `"two-stream"` (default) or `"discrete-ordinates"`.
+    pub method: Method,
+    /// Streams of the discrete-ordinate solver (even, 2–64).
+    pub streams: usize,
+    /// Also compute every row with the other solver and report the two-stream's error.
+    pub error_estimate: bool,
 }
 
 impl Default for SolverSection {
@@ -89,6 +96,9 @@ impl Default for SolverSection {
             fixed_cos_zenith: s.fixed_cos_zenith,
             earth_sun_distance: s.earth_sun_distance,
             daily_mean: s.daily_mean,
+            method: s.method,
+            streams: s.streams,
+            error_estimate: s.error_estimate,
         }
     }
 }
@@ -117,6 +127,13 @@ impl SolverSection {
                 "[solver] fixed_cos_zenith = {mu}: expected a number in (0, 1]"
             ));
         }
+        if !(2..=MAX_STREAMS).contains(&self.streams) || self.streams % 2 != 0 {
+            return Err(format!(
+                "[solver] streams = {}: expected an even number of streams from 2 to {MAX_STREAMS} \
+                 (4 is the default; 8 or 16 for reference work)",
+                self.streams
+            ));
+        }
         Ok(Settings {
             solar_constant_wm2: self.solar_constant_wm2,
             closure: self.closure,
@@ -127,6 +144,10 @@ impl SolverSection {
             fixed_cos_zenith: self.fixed_cos_zenith,
             earth_sun_distance: self.earth_sun_distance,
             daily_mean: self.daily_mean,
+            method: self.method,
+            streams: self.streams,
+            error_estimate: self.error_estimate,
+            rayleigh_above_tau: None,
         })
     }
 }
@@ -262,5 +283,25 @@ mod tests {
     fn bad_solar_constant_is_refused() {
         let job = parse("[solver]\nsolar_constant_wm2 = 13.61\n").unwrap();
         assert!(job.solver.settings().is_err());
+    }
+
+    #[test]
+    fn solver_method_streams_and_error_estimate() {
+        let job = parse(
+            "[solver]\nmethod = \"discrete-ordinates\"\nstreams = 8\nerror_estimate = true\n",
+        )
+        .unwrap();
+        let s = job.solver.settings().unwrap();
+        assert_eq!(s.method, Method::DiscreteOrdinates);
+        assert_eq!((s.streams, s.error_estimate), (8, true));
+        let default = parse("").unwrap().solver.settings().unwrap();
+        assert_eq!(default.method, Method::TwoStream);
+        assert!(!default.error_estimate);
+        for bad in [3, 0, 66] {
+            let job = parse(&format!("[solver]\nstreams = {bad}\n")).unwrap();
+            let err = job.solver.settings().unwrap_err();
+            assert!(err.contains("streams") && err.contains("even"), "{err}");
+        }
+        assert!(parse("[solver]\nmethod = \"four-streams\"\n").is_err());
     }
 }

@@ -14,7 +14,8 @@ use chrono::{NaiveDate, TimeZone, Utc};
 use rayon::prelude::*;
 
 use super::output::write_atomic;
-use crate::cli::{GridArgs, Status};
+use crate::cli::{GridArgs, SolverArg, Status};
+use crate::physics::discrete_ordinates::MAX_STREAMS;
 use crate::physics::forcing::{Context, compute_observation};
 use crate::physics::{
     AerosolLayer, BandSet, Effect, Fluxes, Observation, ObservationResult, Settings, SpectralValue,
@@ -83,6 +84,15 @@ fn cases(a: &GridArgs) -> anyhow::Result<Vec<Case>> {
     if !(a.wavelength.is_finite() && (280.0..=4000.0).contains(&a.wavelength)) {
         bail!("--wavelength {}: expected 280–4000 nm", a.wavelength);
     }
+    if !(2..=MAX_STREAMS).contains(&a.streams) || a.streams % 2 != 0 {
+        bail!(
+            "--streams {}: expected an even number from 2 to {MAX_STREAMS}",
+            a.streams
+        );
+    }
+    if let Some(t) = a.rayleigh_above {
+        check_list("rayleigh-above", &[t], 0.0, 10.0, false)?;
+    }
     let daily = !a.latitude.is_empty() || !a.date.is_empty();
     let geometry: Vec<(Option<f64>, Option<f64>, Option<NaiveDate>)> = if daily {
         if a.latitude.is_empty() || a.date.is_empty() {
@@ -124,6 +134,9 @@ fn cases(a: &GridArgs) -> anyhow::Result<Vec<Case>> {
         },
         rayleigh: a.rayleigh,
         gases: a.gases,
+        method: a.solver.into(),
+        streams: a.streams,
+        rayleigh_above_tau: a.rayleigh_above,
         ..Settings::default()
     };
     let mut out = Vec::new();
@@ -200,6 +213,13 @@ fn flux_values(f: &Fluxes) -> [f64; 7] {
     ]
 }
 
+/// A command-line value as the command line spells it.
+fn spelled(v: &impl clap::ValueEnum) -> String {
+    v.to_possible_value()
+        .map(|p| p.get_name().to_string())
+        .unwrap_or_default()
+}
+
 fn to_csv(a: &GridArgs, cases: &[Case], results: &[ObservationResult]) -> String {
     let mut s = String::new();
     let mut header = vec![
@@ -216,12 +236,15 @@ fn to_csv(a: &GridArgs, cases: &[Case], results: &[ObservationResult]) -> String
         "date",
         "solar_constant_wm2",
         "closure",
+        "solver",
+        "streams",
         "band_set",
         "rayleigh",
         "gases",
         "ozone_du",
         "water_cm",
         "pressure_hpa",
+        "rayleigh_above_tau",
         "solar_zenith_deg",
         "aod_550",
     ]
@@ -275,13 +298,20 @@ fn to_csv(a: &GridArgs, cases: &[Case], results: &[ObservationResult]) -> String
             c.latitude.map(num).unwrap_or_default(),
             c.date.map(|d| d.to_string()).unwrap_or_default(),
             num(c.settings.solar_constant_wm2),
-            format!("{:?}", c.settings.closure),
-            format!("{:?}", c.settings.band_set),
+            spelled(&a.closure),
+            spelled(&a.solver),
+            if a.solver == SolverArg::DiscreteOrdinates {
+                a.streams.to_string()
+            } else {
+                String::new()
+            },
+            if a.spectral { "spectral" } else { "single" }.into(),
             c.settings.rayleigh.to_string(),
             c.settings.gases.to_string(),
             num(a.ozone_du),
             num(a.water_cm),
             num(a.pressure_hpa),
+            a.rayleigh_above.map(num).unwrap_or_default(),
             if daily {
                 String::new()
             } else {

@@ -382,6 +382,7 @@ mod tests {
                 sun_below_horizon: true,
                 ..Flags::default()
             },
+            solver_error: Default::default(),
         };
         let s = serde_json::to_string(&r).unwrap();
         let back: ObservationResult = serde_json::from_str(&s).unwrap();

@@ -9,7 +9,18 @@ use super::template::{SheetSpec, Template};
 use super::xlsx::{SIGNIFICANT_DIGITS, Styles, clip};
 use crate::ingest::ValueSource;
 use crate::physics::references::METHODS;
-use crate::physics::{BandSet, Closure, Settings};
+use crate::physics::{BandSet, Closure, Method, Settings};
+
+/// The solver of the main Results columns as written in the report.
+pub fn solver_name(settings: &Settings) -> String {
+    match settings.method {
+        Method::TwoStream => format!("the {} two-stream closure", closure_name(settings.closure)),
+        Method::DiscreteOrdinates => format!(
+            "the {}-stream discrete-ordinate solver with delta-M (Stamnes et al. 1988; Wiscombe 1977)",
+            settings.streams
+        ),
+    }
+}
 
 /// Name of a closure as written in the report.
 pub fn closure_name(c: Closure) -> &'static str {
@@ -156,7 +167,7 @@ pub fn write_about(
         "Job \"{}\"{period}: the clear-sky shortwave aerosol direct radiative effect (DRE) at the top of the atmosphere (TOA) and at the surface (SFC), \
          the atmospheric absorption ΔF_ATM = ΔF_TOA − ΔF_SFC, forcing efficiencies and the heating rate of the aerosol layer, \
          at the measurement time and as 24-hour means, for {} computed observation(s) at {} site(s) ({}){span}, read from {}. \
-         Computed by hazebook {} with the {} two-stream closure over the {}; written with the \"{}\" template. \
+         Computed by hazebook {} with {} over the {}; written with the \"{}\" template. \
          Net flux is downward minus upward; negative DRE cools. Sheets: {}.",
         about.job_name,
         input.results.len(),
@@ -168,7 +179,7 @@ pub fn write_about(
             files.join(", ")
         },
         about.version,
-        closure_name(settings.closure),
+        solver_name(settings),
         band_set_name(settings.band_set),
         about.template_name,
         sheet_names.join(", "),
@@ -226,6 +237,22 @@ pub fn write_about(
         .unwrap_or_else(|| "off (from time and place)".into());
     let rows: Vec<(&str, String)> = vec![
         ("Two-stream closure", closure_name(settings.closure).into()),
+        ("Flux solver (main columns)", solver_name(settings)),
+        (
+            "Two-stream error columns",
+            if settings.error_estimate {
+                format!(
+                    "on: each row also computed with {}; the *_error columns are two-stream minus discrete ordinates",
+                    match settings.method {
+                        Method::TwoStream =>
+                            format!("the {}-stream discrete-ordinate solver", settings.streams),
+                        Method::DiscreteOrdinates => closure_name(settings.closure).to_string(),
+                    }
+                )
+            } else {
+                "off".into()
+            },
+        ),
         ("Band set", band_set_name(settings.band_set).into()),
         (
             "Solar constant",

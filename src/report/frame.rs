@@ -68,6 +68,8 @@ enum Source {
     Effect(bool, fn(&Effect) -> f64),
     /// A flux of the clean (`false`) or aerosol (`true`) column, instantaneous or daily.
     Flux(bool, bool, fn(&Fluxes) -> f64),
+    /// A two-stream error ([`crate::physics::SolverError`]).
+    Error(fn(&Row) -> f64),
 }
 
 /// Definition of one Results column.
@@ -108,6 +110,7 @@ impl ColumnDef {
                 };
                 Value::Num(f(if aerosol { &e.aerosol } else { &e.clean }))
             }
+            Source::Error(f) => Value::Num(f(row)),
         }
     }
 
@@ -129,6 +132,7 @@ pub const COLUMN_GROUPS: &[&str] = &[
     "instantaneous",
     "daily",
     "fluxes",
+    "solver_error",
     "status",
 ];
 
@@ -288,6 +292,65 @@ fn flux_columns(daily: bool) -> Vec<ColumnDef> {
         }
     }
     out
+}
+
+/// The two-stream's error of each DRE (two-stream minus discrete ordinates), computed only
+/// with `[solver] error_estimate = true`.
+fn solver_error_columns() -> Vec<ColumnDef> {
+    type Field = (&'static str, &'static str, bool, fn(&Row) -> f64);
+    let fields: [Field; 6] = [
+        (
+            "dre_toa_error",
+            "ΔF_TOA two-stream error (instantaneous)",
+            false,
+            |r| r.res.solver_error.dre_toa,
+        ),
+        (
+            "dre_sfc_error",
+            "ΔF_SFC two-stream error (instantaneous)",
+            false,
+            |r| r.res.solver_error.dre_sfc,
+        ),
+        (
+            "dre_atm_error",
+            "ΔF_ATM two-stream error (instantaneous)",
+            false,
+            |r| r.res.solver_error.dre_atm,
+        ),
+        (
+            "dre_toa_error_24h",
+            "ΔF_TOA two-stream error (24-h mean)",
+            true,
+            |r| r.res.solver_error.dre_toa_24h,
+        ),
+        (
+            "dre_sfc_error_24h",
+            "ΔF_SFC two-stream error (24-h mean)",
+            true,
+            |r| r.res.solver_error.dre_sfc_24h,
+        ),
+        (
+            "dre_atm_error_24h",
+            "ΔF_ATM two-stream error (24-h mean)",
+            true,
+            |r| r.res.solver_error.dre_atm_24h,
+        ),
+    ];
+    fields
+        .into_iter()
+        .map(|(key, header, daily, f)| ColumnDef {
+            daily,
+            sunlit: !daily,
+            ..col(
+                key,
+                header,
+                "W m⁻²",
+                Class::Dre,
+                "solver_error",
+                Source::Error(f),
+            )
+        })
+        .collect()
 }
 
 fn time_millis(t: &DateTime<Utc>) -> i64 {
@@ -510,6 +573,7 @@ static COLUMNS: LazyLock<Vec<ColumnDef>> = LazyLock::new(|| {
     v.extend(effect_columns(true));
     v.extend(flux_columns(false));
     v.extend(flux_columns(true));
+    v.extend(solver_error_columns());
     v.push(col(
         "flags",
         "Flags",
@@ -592,10 +656,12 @@ pub fn select_columns(names: &[String]) -> Option<Vec<&'static ColumnDef>> {
     Some(out)
 }
 
-/// Drop the columns that the settings did not compute (24-hour means when switched off).
+/// Drop the columns that the settings did not compute (24-hour means when switched off, the
+/// two-stream errors without `error_estimate`).
 pub fn available<'c>(cols: Vec<&'c ColumnDef>, settings: &Settings) -> Vec<&'c ColumnDef> {
     cols.into_iter()
         .filter(|c| settings.daily_mean || !c.daily)
+        .filter(|c| settings.error_estimate || c.group != "solver_error")
         .collect()
 }
 

@@ -420,6 +420,21 @@ fn build_workbook(
                 );
                 xlsx::write_summary(&mut wb, template, spec, &styles, rows, &groups, &keys, &qs)
                     .map_err(xerr)?;
+                if qs.is_empty() && !qnames.is_empty() {
+                    // Every quantity named needs a setting that is off (e.g. the two-stream
+                    // error columns): say so instead of leaving the sheet blank.
+                    let ws = wb.worksheet_from_name(&spec.name).map_err(xerr)?;
+                    ws.write_string(
+                        2,
+                        0,
+                        format!(
+                            "Not computed in this run: {} (the two-stream error columns need \
+                             [solver] error_estimate = true; the 24-hour ones need daily means).",
+                            qnames.join(", ")
+                        ),
+                    )
+                    .map_err(xerr)?;
+                }
             }
             SheetKind::Efficiency => {
                 let groupings = spec
