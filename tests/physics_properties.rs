@@ -253,7 +253,8 @@ proptest! {
         prop_assert!(all_finite(&r), "{r:?}");
     }
 
-    /// No panic for any input at all, NaN and infinities included.
+    /// No panic for any input at all, NaN and infinities included; a NaN AOD or optical depth
+    /// comes out as NaN.
     #[test]
     fn no_panic_for_any_input(
         x in prop::collection::vec(prop_oneof![any::<f64>(), Just(f64::NAN), Just(f64::INFINITY), Just(-0.0)], 16),
@@ -278,8 +279,15 @@ proptest! {
             diurnal_nodes: nodes,
             ..Settings::default()
         };
-        let _ = compute_observation(&o, &s, &Context::new(&s));
-        let _ = solve_layer(LayerOptics { tau: x[0], ssa: x[1], g: x[2] }, x[3], c);
+        let r = compute_observation(&o, &s, &Context::new(&s));
+        // A NaN AOD on a sunlit day is a NaN effect, never a number.
+        if x[2].is_nan() && r.daily.clean.toa_down > 0.0 {
+            prop_assert!(r.daily.dre_toa.is_nan() && r.daily.dre_sfc.is_nan(), "{r:?}");
+        }
+        let l = solve_layer(LayerOptics { tau: x[0], ssa: x[1], g: x[2] }, x[3], c);
+        if x[0].is_nan() && x[3] > 0.0 {
+            prop_assert!(l.direct.reflectance.is_nan() && l.diffuse.transmittance.is_nan(), "{l:?}");
+        }
     }
 }
 
