@@ -129,7 +129,7 @@ fn header_of(c: Col) -> &'static str {
 /// and in 2025, apart from the junk times of [`cell`], so no valid row is a duplicate).
 fn valid_cell(c: Col, i: usize, x: f64) -> W {
     match c {
-        Col::Site => W::S(if i % 2 == 0 { "Alpha" } else { "Beta" }),
+        Col::Site => W::S(if i.is_multiple_of(2) { "Alpha" } else { "Beta" }),
         Col::Time => W::Str(format!(
             "2025-03-{:02}T{:02}:{:02}:00Z",
             1 + i / 24,
