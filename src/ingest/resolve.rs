@@ -208,7 +208,7 @@ pub fn fit_angstrom(points: &[(f64, f64)]) -> Option<f64> {
 }
 
 /// A spectral quantity at `wavelength_nm`: linear in ln λ between the given wavelengths, the
-/// end values held outside them (hazebook's aerosol spectral model, product brief §2).
+/// end values held outside them (hazebook's aerosol spectral model, README "Methods").
 ///
 /// - `points`: (wavelength [nm], value) sorted by ascending wavelength, non-empty.
 pub fn interpolate_ln_wavelength(points: &[(f64, f64)], wavelength_nm: f64) -> f64 {

@@ -18,8 +18,8 @@ pub(crate) enum Check {
 ///
 /// Ranges: AOD ≥ 0 (warning above 3), SSA in (0, 1], g in [−1, 1] (warning outside
 /// [0.3, 0.9]), albedo in [0, 1], latitude in [−90, 90], longitude in [−180, 360), ozone in
-/// [100, 700] DU, precipitable water in [0, 10] cm, pressure in [300, 1100] hPa: the bounds of
-/// the product brief §5 and common practice. Altitude in [−500, 9000] m, aerosol layer top in
+/// [100, 700] DU, precipitable water in [0, 10] cm, pressure in [300, 1100] hPa: physical bounds
+/// of each quantity (common practice). Altitude in [−500, 9000] m, aerosol layer top in
 /// (0, 20] km, Ångström exponent in [−1, 4] and UTC offsets in [−14, 14] h are common practice.
 pub(crate) fn check(kind: Kind, value: f64, found: &str) -> Check {
     let v = value;

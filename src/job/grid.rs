@@ -1,7 +1,7 @@
 //! `hazebook grid`: idealised sensitivity tables over the Cartesian product of AOD, SSA, g,
 //! albedo and cos(solar zenith) (or latitude and date for 24-hour means).
 //!
-//! By default the idealised switches of the brief apply: one band at the reference wavelength
+//! By default the idealised switches apply (README, "Usage"): one band at the reference wavelength
 //! carrying the whole solar constant, Rayleigh and gases off, no Earth–Sun distance
 //! correction for fixed-zenith cases. The CSV carries every input of each case and the
 //! fluxes at full precision (the shortest decimal that reads back to the same double).

@@ -17,7 +17,7 @@
 //! honoured). For an elevated
 //! aerosol, water vapour is split between the aerosol and the lower layer by pressure
 //! thickness too (a simplification: the real profile is more bottom-heavy; all of it stays
-//! below the aerosol top, as the brief asks). Gas optical depths are the band-effective
+//! below the aerosol top, README "Methods"). Gas optical depths are the band-effective
 //! depths of [`super::gases`] for the path of the sun of each evaluation (Bird & Riordan
 //! 1986: air mass m of Kasten & Young 1989 for water vapour and mixed gases, the ozone air
 //! mass M_o for ozone), referred to the plane-parallel slant factor 1/μ0 of the solver, so

@@ -54,7 +54,7 @@ fn on_off(b: bool) -> &'static str {
     if b { "on" } else { "off" }
 }
 
-/// The cautions stated on every report (BRIEF §8).
+/// The cautions stated on every report (README, "Cautions").
 pub const CAUTIONS: &[&str] = &[
     "Clear sky only: clouds are not represented; rows under cloud give the effect the aerosol would have had in a cloud-free sky.",
     "Plane-parallel, horizontally homogeneous atmosphere; two-stream radiative transfer with broadband shortwave bands.",

@@ -157,7 +157,7 @@ fn col(
 }
 
 /// Linear interpolation in ln λ, end values held outside the given wavelengths (the rule of
-/// the aerosol spectral model, BRIEF §2), evaluated at `nm`.
+/// the aerosol spectral model, README "Methods"), evaluated at `nm`.
 pub fn interpolate_ln_wavelength(values: &[SpectralValue], nm: f64) -> f64 {
     match values {
         [] => f64::NAN,
