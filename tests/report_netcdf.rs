@@ -307,9 +307,9 @@ fn summaries_are_site_by_month_statistics() {
         Some("toa_instantaneous_shortwave_forcing standard_error")
     );
     assert_eq!(
-        ds.get_var_attr_as_string("dre_toa_24h_count", "standard_name")
-            .as_deref(),
-        Some("toa_instantaneous_shortwave_forcing number_of_observations")
+        ds.get_var_attr_as_string("dre_toa_24h_count", "standard_name"),
+        None,
+        "the number_of_observations modifier is deprecated"
     );
     assert!(
         ds.get_var_attr_as_string("dre_toa_24h_p95", "cell_methods")

@@ -1000,14 +1000,8 @@ pub fn netcdf_summary(input: &ReportInput, meta: &SideMeta) -> Result<Vec<u8>, R
                     summaries.iter().map(|s| s.n as i32).collect(),
                 )?;
                 b.text(&name, "long_name", &long)?;
+                // No standard name: the `number_of_observations` modifier is deprecated.
                 b.text(&name, "units", "1")?;
-                if let Some(sn) = standard_name(&q.key) {
-                    b.text(
-                        &name,
-                        "standard_name",
-                        &format!("{sn} number_of_observations"),
-                    )?;
-                }
             } else {
                 b.f64_var(
                     &name,
