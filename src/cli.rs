@@ -17,6 +17,11 @@ const EXIT_HELP: &str = "Exit status:
   1  success with rejected rows: report written, see its Rejected sheet
   2  failed: nothing written (bad arguments, unreadable input, missing column, bad job file)";
 
+const CHECK_EXIT_HELP: &str = "Exit status:
+  0  every row would be computed
+  1  some rows would be rejected (each is listed with its cell)
+  2  the inputs cannot be read (bad arguments, unreadable input, missing column, bad job file)";
+
 /// Clear-sky shortwave aerosol direct radiative effect from campaign workbooks.
 ///
 /// Reads workbooks of aerosol optical depth, single-scattering albedo and asymmetry factor,
@@ -39,9 +44,15 @@ pub enum Command {
     #[command(after_help = EXIT_HELP)]
     Run(RunArgs),
     /// Read and validate only: print the mapping, warnings and rejected rows with cells.
-    #[command(after_help = EXIT_HELP)]
+    ///
+    /// Writes nothing. Cost: reading the inputs; no radiative transfer.
+    #[command(after_help = CHECK_EXIT_HELP)]
     Check(CheckArgs),
-    /// Write a commented job file (mapping pre-filled from a workbook) and a template copy.
+    /// Write a commented job file (mapping and site values pre-filled from a workbook) and a
+    /// template copy.
+    ///
+    /// With --from, what the workbook gives is written out and what it lacks is left as a
+    /// commented placeholder to fill in. Cost: reading the workbook once.
     Init(InitArgs),
     /// List the built-in report templates, or print one.
     Templates(TemplatesArgs),
@@ -196,7 +207,8 @@ pub struct GridArgs {
     /// Surface albedo values.
     #[arg(long, value_delimiter = ',', default_value = "0.05,0.2")]
     pub albedo: Vec<f64>,
-    /// cos(solar zenith) values for instantaneous cases.
+    /// cos(solar zenith) values for instantaneous cases [default: 0.25,0.5,0.75,1.0 unless
+    /// --latitude and --date give 24-hour means].
     #[arg(long, value_delimiter = ',', conflicts_with_all = ["latitude", "date"])]
     pub mu0: Vec<f64>,
     /// Latitudes [deg] for 24-hour means (with --date).
@@ -220,8 +232,10 @@ pub struct GridArgs {
     /// Switch gas absorption on (300 DU ozone, 1.5 cm water unless given).
     #[arg(long)]
     pub gases: bool,
+    /// Ozone column [DU] (used with --gases).
     #[arg(long, default_value_t = 300.0)]
     pub ozone_du: f64,
+    /// Precipitable water [cm] (used with --gases).
     #[arg(long, default_value_t = 1.5)]
     pub water_cm: f64,
     /// Surface pressure [hPa].

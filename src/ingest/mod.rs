@@ -34,6 +34,7 @@
 
 mod cells;
 mod detect;
+mod metadata;
 mod read;
 mod resolve;
 mod sources;
@@ -45,6 +46,7 @@ use std::path::Path;
 
 use polars::prelude::*;
 
+pub use read::{NO_TIME_OF_DAY, blank_instantaneous, lacks_time_of_day};
 pub use resolve::{fit_angstrom, interpolate_ln_wavelength};
 pub use types::*;
 pub use validate::check_observation;
@@ -70,6 +72,32 @@ pub(crate) fn format_wavelength(w: f64) -> String {
 /// required column is missing, the job file's mapping names no column, or the site table
 /// holds a bad value. Nothing is returned in part.
 pub fn read_inputs(spec: &InputSpec) -> Result<Ingested, IngestError> {
+    read_all(spec, &mut None)
+}
+
+/// What a workbook gives and lacks, for `hazebook init`: the inputs read as by
+/// [`read_inputs`], except that a missing required column does not stop the reading; each
+/// such problem is listed in [`Survey::missing`] (and the rows that need it are rejected).
+#[derive(Debug, Clone, Default)]
+pub struct Survey {
+    pub ingested: Ingested,
+    /// The messages of missing required columns (or locations), one per sheet.
+    pub missing: Vec<String>,
+}
+
+/// Survey the inputs of `spec` (see [`Survey`]).
+///
+/// Errors: as [`read_inputs`], except a missing required column.
+pub fn survey(spec: &InputSpec) -> Result<Survey, IngestError> {
+    let mut missing = Some(Vec::new());
+    let ingested = read_all(spec, &mut missing)?;
+    Ok(Survey {
+        ingested,
+        missing: missing.unwrap_or_default(),
+    })
+}
+
+fn read_all(spec: &InputSpec, missing: &mut Option<Vec<String>>) -> Result<Ingested, IngestError> {
     if spec.paths.is_empty() {
         return Err(IngestError::Layout {
             path: String::new(),
@@ -80,9 +108,24 @@ pub fn read_inputs(spec: &InputSpec) -> Result<Ingested, IngestError> {
     let mut rows = Rows::default();
     let mut out = Ingested::default();
     for path in &spec.paths {
-        read_file(path, spec, &fill, &mut rows, &mut out).map_err(without_repeated_path)?;
+        read_file(path, spec, &fill, &mut rows, &mut out, missing)
+            .map_err(without_repeated_path)?;
     }
     finish(rows, out)
+}
+
+/// A missing required column stops the reading, unless a survey collects it.
+fn required(
+    result: Result<(), IngestError>,
+    missing: &mut Option<Vec<String>>,
+) -> Result<(), IngestError> {
+    match (result, missing) {
+        (Err(e), Some(list)) => {
+            list.push(without_repeated_path(e).to_string());
+            Ok(())
+        }
+        (r, _) => r,
+    }
 }
 
 fn read_file(
@@ -91,6 +134,7 @@ fn read_file(
     fill: &FillValues,
     rows: &mut Rows,
     out: &mut Ingested,
+    missing: &mut Option<Vec<String>>,
 ) -> Result<(), IngestError> {
     let file = path.display().to_string();
     let kind = sources::file_kind(path)?;
@@ -178,8 +222,48 @@ fn read_file(
                 sheet_sites = read::read_site_sheet(&g, header, fill, &file, &names[i])?;
                 sheets_read.push(names[i].clone());
             }
+            if site_idx.is_none() {
+                // One site per workbook: a key/value metadata sheet and lines above the header.
+                let mut kv = None;
+                for (i, n) in names.iter().enumerate() {
+                    if i == data_idx {
+                        continue;
+                    }
+                    if grids[i].is_none() {
+                        grids[i] = Some(book.load(n)?);
+                    }
+                    if let Some(g) = grids[i]
+                        .as_ref()
+                        .filter(|g| metadata::is_key_value_sheet(g))
+                    {
+                        kv = Some(metadata::read_key_value_sheet(g, fill, &file, n)?);
+                        sheets_read.push(n.clone());
+                        break;
+                    }
+                }
+                let lines = metadata::read_header_lines(
+                    &data_grid,
+                    layout.header_row,
+                    fill,
+                    &file,
+                    &data_name,
+                )?;
+                if let Some(meta) = metadata::combine(kv, lines, &file, &mut out.warnings) {
+                    if !meta.unused.is_empty() {
+                        out.warnings.push(format!(
+                            "{file}: metadata rows not used (no site quantity hazebook knows): {}",
+                            meta.unused.join(", ")
+                        ));
+                    }
+                    out.metadata.extend(meta.values.iter().cloned());
+                    sheet_sites.push(meta.info);
+                }
+            }
             let sites = SiteTable::merge(&sheet_sites, &spec.sites);
-            read::require_columns(&layout, &data_grid, &file, &data_name, &sites)?;
+            required(
+                read::require_columns(&layout, &data_grid, &file, &data_name, &sites),
+                missing,
+            )?;
             sheets_read.insert(0, data_name.clone());
             let ctx = SheetContext {
                 file: &file,
@@ -206,7 +290,10 @@ fn read_file(
             };
             let layout = read::data_layout(&grid, &spec_here, &file, "")?;
             let sites = SiteTable::merge(&[], &spec.sites);
-            read::require_columns(&layout, &grid, &file, "", &sites)?;
+            required(
+                read::require_columns(&layout, &grid, &file, "", &sites),
+                missing,
+            )?;
             let ctx = SheetContext {
                 file: &file,
                 sheet: "",
@@ -547,6 +634,15 @@ fn text_column<'a>(name: &str, values: impl Iterator<Item = &'a str> + Clone, n:
     }
 }
 
+/// `1 row`, `2 rows`.
+pub fn rows_text(n: usize) -> String {
+    if n == 1 {
+        "1 row".into()
+    } else {
+        format!("{n} rows")
+    }
+}
+
 /// A text summary for the command line: files, mapping (header text and column letter of
 /// each quantity), row counts, assumptions and warnings.
 pub fn mapping_summary(ing: &Ingested) -> String {
@@ -564,7 +660,13 @@ pub fn mapping_summary(ing: &Ingested) -> String {
                 .filter(|m| m.file == f.path && &m.sheet == sheet)
                 .collect();
             if cols.is_empty() {
-                s.push_str(&format!("  sheet \"{sheet}\": site table\n"));
+                let place = format!("sheet \"{sheet}\", cell");
+                let what = if ing.metadata.iter().any(|v| v.origin.contains(&place)) {
+                    "site metadata (label, value, unit rows)"
+                } else {
+                    "site table"
+                };
+                s.push_str(&format!("  sheet \"{sheet}\": {what}\n"));
                 continue;
             }
             s.push_str(&format!("  sheet \"{sheet}\":\n"));
@@ -583,18 +685,39 @@ pub fn mapping_summary(ing: &Ingested) -> String {
         "rows: {} read = {} computed + {} rejected + {} outside the period\n",
         c.read, c.computed, c.rejected, c.outside_period
     ));
-    if !ing.assumptions.is_empty() {
-        s.push_str("assumed:\n");
-        for a in &ing.assumptions {
-            let src = match a.source {
-                ValueSource::Workbook => "workbook",
-                ValueSource::SiteTable => "site table",
-                ValueSource::JobFile => "job file",
-                ValueSource::BuiltIn => "built-in",
-            };
+    if !ing.metadata.is_empty() {
+        s.push_str("site values read from metadata:\n");
+        for v in &ing.metadata {
             s.push_str(&format!(
-                "  {} = {} ({src}; {} rows)\n",
-                a.quantity, a.value, a.rows
+                "  {} {} = {} <- {}\n",
+                v.site, v.quantity, v.value, v.origin
+            ));
+        }
+    }
+    for (heading, given) in [
+        (
+            "taken from the site table, job file or workbook (not in the rows):",
+            true,
+        ),
+        ("assumed (built-in defaults):", false),
+    ] {
+        let list: Vec<&Assumption> = ing
+            .assumptions
+            .iter()
+            .filter(|a| (a.source != ValueSource::BuiltIn) == given)
+            .collect();
+        if list.is_empty() {
+            continue;
+        }
+        s.push_str(heading);
+        s.push('\n');
+        for a in list {
+            s.push_str(&format!(
+                "  {} = {} ({}; {})\n",
+                a.quantity,
+                a.value,
+                read::source_label(a.source),
+                rows_text(a.rows)
             ));
         }
     }

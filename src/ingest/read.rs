@@ -10,7 +10,7 @@ use super::cells::{
     Cell, FillValues, Grid, NumberRead, column_index, column_letter, format_number, read_number,
 };
 use super::detect::{self, Kind, closest_header, parse_header};
-use super::resolve::{FxBuild, SiteTable, Sourced, default_source, fit_angstrom, site_key};
+use super::resolve::{FxBuild, SiteTable, Sourced, fit_angstrom, job_default_source, site_key};
 use super::time::{
     ParsedTime, TimeRead, combine, parse_offset_hours, read_date, read_time, read_time_of_day,
 };
@@ -534,7 +534,7 @@ pub(crate) fn read_site_sheet(
     Ok(out)
 }
 
-fn parse_surface(cell: &Cell<'_>) -> Option<SurfaceType> {
+pub(crate) fn parse_surface(cell: &Cell<'_>) -> Option<SurfaceType> {
     let t = cell.text()?.to_lowercase();
     match t.trim() {
         "land" | "l" | "ground" => Some(SurfaceType::Land),
@@ -683,10 +683,16 @@ pub(crate) fn read_rows(ctx: &SheetContext<'_>, rows: &mut Rows) {
         .collect();
     if !notes.is_empty() {
         rows.warnings.push(format!(
-            "{}: {} row(s) after the last data row hold no measurement and are read as notes (rows {})",
+            "{}: {} after the last data row {} no measurement and {} read as notes (rows {})",
             place(ctx.file, ctx.sheet),
-            notes.len(),
-            notes.iter().map(|n| n.to_string()).collect::<Vec<_>>().join(", ")
+            super::rows_text(notes.len()),
+            if notes.len() == 1 { "holds" } else { "hold" },
+            if notes.len() == 1 { "is" } else { "are" },
+            notes
+                .iter()
+                .map(|n| n.to_string())
+                .collect::<Vec<_>>()
+                .join(", ")
         ));
     }
     // Rows are read and checked in parallel (each on its own), then counted and checked for
@@ -749,7 +755,9 @@ pub(crate) fn read_rows(ctx: &SheetContext<'_>, rows: &mut Rows) {
                     },
                     acc.observation.time_utc.timestamp_millis(),
                 );
-                if let Some(&first) = rows.seen.get(&key) {
+                // Rows placed by their date alone share a nominal time: not duplicates.
+                let nominal_time = lacks_time_of_day(&acc.warnings);
+                if let Some(&first) = rows.seen.get(&key).filter(|_| !nominal_time) {
                     let f = &rows.accepted[first].origin;
                     let origin = acc.origin;
                     let first_ref = if f.file == origin.file && f.sheet == origin.sheet {
@@ -778,7 +786,9 @@ pub(crate) fn read_rows(ctx: &SheetContext<'_>, rows: &mut Rows) {
                     });
                     continue;
                 }
-                rows.seen.insert(key, rows.accepted.len());
+                if !nominal_time {
+                    rows.seen.insert(key, rows.accepted.len());
+                }
                 rows.counts.computed += 1;
                 rows.accepted.push(acc);
             }
@@ -845,6 +855,9 @@ fn read_row(ctx: &SheetContext<'_>, r: usize) -> Result<Option<Accepted>, Proble
     let fill = ctx.fill;
     let mut v = RowValues::default();
     let mut warnings: Vec<RowWarning> = Vec::new();
+    // Empty or fill-value cells of provided columns: (quantity, column, wavelength, as found).
+    let mut missing_cells: Vec<(&'static str, usize, f64, String)> = Vec::new();
+    let mut bad_time_of_day: Option<Problem> = None;
     for m in &ctx.layout.columns {
         let cell = grid.cell(r, m.col);
         match m.kind {
@@ -854,15 +867,16 @@ fn read_row(ctx: &SheetContext<'_>, r: usize) -> Result<Option<Accepted>, Proble
                     match read_time_of_day(&cell, ctx.is_1904, fill) {
                         Ok(t) => v.time_of_day = t,
                         Err(Some(TimeRead::Value(p))) => v.time = Some((p, m.col)),
+                        // Placed by its date if the date is readable (decided below).
                         Err(Some(TimeRead::Bad(why))) => {
-                            return Err(Problem::at(
+                            bad_time_of_day = Some(Problem::at(
                                 m,
                                 &cell,
                                 format!("{why}, found {}", cell.display()),
                             ));
                         }
                         Err(_) => {
-                            return Err(Problem::at(
+                            bad_time_of_day = Some(Problem::at(
                                 m,
                                 &cell,
                                 format!(
@@ -936,7 +950,12 @@ fn read_row(ctx: &SheetContext<'_>, r: usize) -> Result<Option<Accepted>, Proble
             }
             kind => {
                 let x = match read_number(&cell, fill) {
-                    NumberRead::Missing => continue,
+                    NumberRead::Missing => {
+                        if let Some(q) = fallback_quantity(kind) {
+                            missing_cells.push((q, m.col, m.wavelength(), cell.display()));
+                        }
+                        continue;
+                    }
                     NumberRead::Bad(why) => {
                         return Err(Problem::at(
                             m,
@@ -999,10 +1018,24 @@ fn read_row(ctx: &SheetContext<'_>, r: usize) -> Result<Option<Accepted>, Proble
         }
     };
     // Time.
+    // A readable date without a readable time of day: the row is placed on its date, its
+    // 24-hour values computed and its instantaneous values left empty.
+    let mut date_only: Option<(usize, String)> = None;
     let parsed = match (v.time, v.date, v.time_of_day) {
         (Some((p, _)), _, _) => p,
-        (None, Some(d), Some((secs, off))) => combine(d, secs, off),
-        (None, Some(_), None) => return Err(missing(Kind::Time, "the time of day")),
+        (None, Some(d), Some((secs, off))) if bad_time_of_day.is_none() => combine(d, secs, off),
+        (None, Some(d), _) => {
+            let time_col = first_col(Kind::Time).map(|m| m.col);
+            let found = match &bad_time_of_day {
+                Some(p) if !p.value.is_empty() => format!("\"{}\"", p.value),
+                _ => "an empty cell".into(),
+            };
+            date_only = time_col.map(|c| (c, found));
+            if date_only.is_none() {
+                return Err(missing(Kind::Time, "the time of day"));
+            }
+            d
+        }
         (None, None, _) => {
             return Err(if ctx.layout.split_date_time {
                 missing(Kind::Date, "the date")
@@ -1020,8 +1053,12 @@ fn read_row(ctx: &SheetContext<'_>, r: usize) -> Result<Option<Accepted>, Proble
     if v.asymmetry.is_empty() {
         return Err(missing(Kind::Asymmetry, "the asymmetry factor"));
     }
+    refuse_unallowed_fallback(ctx, &missing_cells)?;
     let mut assumptions: Vec<(&'static str, Val, ValueSource)> = Vec::with_capacity(12);
     let d = &ctx.spec.defaults;
+    let default_source = |key: &str, field: fn(&AtmosphereDefaults) -> f64| {
+        job_default_source(&ctx.spec.defaults_set, key, d, field)
+    };
     // Site.
     let site_name = match v.site.take() {
         Some(s) => s,
@@ -1115,7 +1152,7 @@ fn read_row(ctx: &SheetContext<'_>, r: usize) -> Result<Option<Accepted>, Proble
         assumptions.push((
             "altitude_m",
             Val::Num(d.altitude_m.to_bits()),
-            default_source(d, |d| d.altitude_m),
+            default_source("altitude_m", |d| d.altitude_m),
         ));
         d.altitude_m
     });
@@ -1158,14 +1195,28 @@ fn read_row(ctx: &SheetContext<'_>, r: usize) -> Result<Option<Accepted>, Proble
                     assumptions.push((
                         "surface",
                         Val::Text("ocean"),
-                        default_source(d, |d| d.surface),
+                        job_default_source(&ctx.spec.defaults_set, "surface", d, |d| d.surface),
                     ));
                 }
                 d.surface
             }
         };
         match surface_type {
-            SurfaceType::Ocean => (SurfaceType::Ocean, None),
+            SurfaceType::Ocean => {
+                // The ocean model wins over a site albedo: its albedo follows the sun.
+                if let Some(a) = entry.and_then(|e| e.albedo) {
+                    assumptions.push((
+                        "albedo",
+                        Val::Owned(format!(
+                            "Taylor et al. (1996) ocean albedo, not the {} value {} (site {site_rc}): an ocean surface takes its albedo from the solar zenith angle; give surface = \"land\" to use a fixed albedo",
+                            source_label(a.source),
+                            format_number(a.value)
+                        )),
+                        a.source,
+                    ));
+                }
+                (SurfaceType::Ocean, None)
+            }
             SurfaceType::Land => match entry.and_then(|e| e.albedo) {
                 Some(a) => {
                     assumptions.push((
@@ -1179,7 +1230,7 @@ fn read_row(ctx: &SheetContext<'_>, r: usize) -> Result<Option<Accepted>, Proble
                     assumptions.push((
                         "albedo",
                         Val::Num(d.albedo.to_bits()),
-                        default_source(d, |d| d.albedo),
+                        default_source("albedo", |d| d.albedo),
                     ));
                     (SurfaceType::Land, Some(d.albedo))
                 }
@@ -1196,19 +1247,19 @@ fn read_row(ctx: &SheetContext<'_>, r: usize) -> Result<Option<Accepted>, Proble
         "ozone_du",
         v.ozone,
         d.ozone_du,
-        default_source(d, |d| d.ozone_du),
+        default_source("ozone_du", |d| d.ozone_du),
     );
     let water_cm = or_default(
         "water_cm",
         v.water,
         d.water_cm,
-        default_source(d, |d| d.water_cm),
+        default_source("water_cm", |d| d.water_cm),
     );
     let layer_top_km = or_default(
         "layer_top_km",
         v.layer_top,
         d.layer_top_km,
-        default_source(d, |d| d.layer_top_km),
+        default_source("layer_top_km", |d| d.layer_top_km),
     );
     if layer_top_km <= d.layer_base_km {
         let m = first_col(Kind::LayerTop);
@@ -1239,7 +1290,7 @@ fn read_row(ctx: &SheetContext<'_>, r: usize) -> Result<Option<Accepted>, Proble
         ));
         s.value
     } else {
-        let src = default_source(d, |d| d.utc_offset_hours);
+        let src = default_source("utc_offset_hours", |d| d.utc_offset_hours);
         let val = if d.utc_offset_hours == 0.0 {
             Val::Text("+00:00 (times without an offset read as UTC)")
         } else {
@@ -1248,9 +1299,21 @@ fn read_row(ctx: &SheetContext<'_>, r: usize) -> Result<Option<Accepted>, Proble
         assumptions.push(("utc_offset_hours", val, src));
         d.utc_offset_hours
     };
-    let time_utc: DateTime<Utc> = (parsed.naive
-        - TimeDelta::milliseconds((offset_hours * 3_600_000.0).round() as i64))
-    .and_utc();
+    let time_utc: DateTime<Utc> = match &date_only {
+        // Local mean-solar noon of the date: the 24-hour mean is that of the date.
+        Some(_) => date_only_time(parsed.naive.date(), longitude),
+        None => (parsed.naive
+            - TimeDelta::milliseconds((offset_hours * 3_600_000.0).round() as i64))
+        .and_utc(),
+    };
+    if let Some((col, found)) = &date_only {
+        warnings.push(RowWarning {
+            cell: ctx.grid.a1(r, *col),
+            message: format!(
+                "{NO_TIME_OF_DAY} (found {found}): placed on its date; the 24-hour values are computed, the instantaneous values are left empty"
+            ),
+        });
+    }
     if let Some(p) = &ctx.spec.period
         && (time_utc < p.start || time_utc >= p.end)
     {
@@ -1297,7 +1360,7 @@ fn read_row(ctx: &SheetContext<'_>, r: usize) -> Result<Option<Accepted>, Proble
         assumptions.push((
             "angstrom",
             Val::Num(d.angstrom.to_bits()),
-            default_source(d, |d| d.angstrom),
+            default_source("angstrom", |d| d.angstrom),
         ));
         d.angstrom
     };
@@ -1325,6 +1388,12 @@ fn read_row(ctx: &SheetContext<'_>, r: usize) -> Result<Option<Accepted>, Proble
                 ),
             });
         }
+    }
+    for (q, col, wl, found) in &missing_cells {
+        warnings.push(RowWarning {
+            cell: ctx.grid.a1(r, *col),
+            message: fallback_message(q, *wl, found, &assumptions),
+        });
     }
     let observation = Observation {
         time_utc,
@@ -1365,6 +1434,145 @@ fn read_row(ctx: &SheetContext<'_>, r: usize) -> Result<Option<Accepted>, Proble
         albedo,
         surface,
     }))
+}
+
+/// How the warning of a row without a readable time of day starts (see [`lacks_time_of_day`]).
+pub const NO_TIME_OF_DAY: &str = "no readable time of day";
+
+/// Whether a row was placed by its date alone (its warnings say so): its instantaneous
+/// values are not known.
+pub fn lacks_time_of_day(warnings: &[RowWarning]) -> bool {
+    warnings
+        .iter()
+        .any(|w| w.message.starts_with(NO_TIME_OF_DAY))
+}
+
+/// Local mean-solar noon of `date` at `longitude_deg` [deg east], in UTC: 12:00 − λ/15 h,
+/// kept within the date (the day whose 24-hour mean the physics computes, as its local
+/// solar date is UTC + λ/15 h).
+fn date_only_time(date: chrono::NaiveDate, longitude_deg: f64) -> DateTime<Utc> {
+    let shift_s = (longitude_deg.clamp(-179.99, 180.0) * 240.0).round() as i64;
+    (date.and_time(chrono::NaiveTime::MIN) + TimeDelta::seconds(12 * 3600 - shift_s)).and_utc()
+}
+
+/// Empty the instantaneous values of rows placed by their date alone
+/// ([`lacks_time_of_day`]): NaN effect and zenith, no sun flags. `results` is aligned with
+/// `row_warnings`.
+pub fn blank_instantaneous(
+    row_warnings: &[Vec<RowWarning>],
+    results: &mut [crate::physics::ObservationResult],
+) {
+    for (w, res) in row_warnings.iter().zip(results.iter_mut()) {
+        if lacks_time_of_day(w) {
+            res.solar_zenith_deg = f64::NAN;
+            let nan = |e: &mut crate::physics::Effect| {
+                let blank = |f: &mut crate::physics::Fluxes| {
+                    f.toa_down = f64::NAN;
+                    f.toa_up = f64::NAN;
+                    f.toa_net = f64::NAN;
+                    f.sfc_down_direct = f64::NAN;
+                    f.sfc_down_diffuse = f64::NAN;
+                    f.sfc_up = f64::NAN;
+                    f.sfc_net = f64::NAN;
+                };
+                blank(&mut e.clean);
+                blank(&mut e.aerosol);
+                e.dre_toa = f64::NAN;
+                e.dre_sfc = f64::NAN;
+                e.dre_atm = f64::NAN;
+                e.efficiency_toa = f64::NAN;
+                e.efficiency_sfc = f64::NAN;
+                e.heating_rate_k_day = f64::NAN;
+            };
+            nan(&mut res.instantaneous);
+            res.flags.sun_below_horizon = false;
+            res.flags.low_sun = false;
+        }
+    }
+}
+
+/// The `[input] fallback` name of a quantity whose empty cells can take a value from
+/// elsewhere; `None` for the others (time, site, location, surface and UTC offset have rules
+/// of their own).
+fn fallback_quantity(kind: Kind) -> Option<&'static str> {
+    match kind {
+        Kind::Angstrom
+        | Kind::Aod
+        | Kind::Ssa
+        | Kind::Asymmetry
+        | Kind::Ozone
+        | Kind::Water
+        | Kind::Pressure
+        | Kind::Altitude
+        | Kind::Albedo
+        | Kind::LayerTop => Some(kind.name()),
+        _ => None,
+    }
+}
+
+/// Reject the row at the first empty or fill-value cell whose quantity the job file does not
+/// allow to fall back (a measured value is never replaced by a default unasked).
+fn refuse_unallowed_fallback(
+    ctx: &SheetContext<'_>,
+    missing: &[(&'static str, usize, f64, String)],
+) -> Result<(), Problem> {
+    let Some((q, col, _, found)) = missing.iter().find(|m| !ctx.spec.allows_fallback(m.0)) else {
+        return Ok(());
+    };
+    let m = ctx.layout.columns.iter().find(|m| m.col == *col);
+    Err(Problem {
+        col: Some(*col),
+        column: m.map(|m| m.name()).unwrap_or_else(|| q.to_string()),
+        value: if found == "an empty cell" {
+            String::new()
+        } else {
+            found.trim_matches('"').to_string()
+        },
+        reason: format!(
+            "expected a number, found {found} (empty or a fill value) in a column the workbook provides; a measured {q} is not replaced by a default unless the job file allows it: fill the cell, or add \"{q}\" to [input] fallback"
+        ),
+    })
+}
+
+/// The warning of a row whose empty or fill-value cell took a value from elsewhere.
+fn fallback_message(
+    quantity: &str,
+    wavelength_nm: f64,
+    found: &str,
+    assumptions: &[(&'static str, Val, ValueSource)],
+) -> String {
+    let used = |key: &str, unit: &str| {
+        assumptions
+            .iter()
+            .rev()
+            .find(|a| a.0 == key)
+            .map(|(_, val, src)| format!("{}{unit} ({}) is used", val.text(), source_label(*src)))
+            .unwrap_or_else(|| "the value from elsewhere is used".into())
+    };
+    match quantity {
+        "aod" | "ssa" | "asymmetry" => format!(
+            "{quantity} at {} nm is {found}: it is left out and the other wavelengths are used ([input] fallback allows it)",
+            format_number(wavelength_nm)
+        ),
+        "angstrom" => format!("angstrom is {found}: {}", used("angstrom", "")),
+        "ozone" => format!("ozone is {found}: {}", used("ozone_du", " DU")),
+        "water" => format!("water is {found}: {}", used("water_cm", " cm")),
+        "pressure" => format!("pressure is {found}: {}", used("pressure_hpa", "")),
+        "altitude" => format!("altitude is {found}: {}", used("altitude_m", " m")),
+        "albedo" => format!("albedo is {found}: {}", used("albedo", "")),
+        "layer_top" => format!("layer_top is {found}: {}", used("layer_top_km", " km")),
+        other => format!("{other} is {found}: the value from elsewhere is used"),
+    }
+}
+
+/// Where a value came from, as the mapping summary and row warnings say it.
+pub(crate) fn source_label(s: ValueSource) -> &'static str {
+    match s {
+        ValueSource::Workbook => "workbook",
+        ValueSource::SiteTable => "site table",
+        ValueSource::JobFile => "job file",
+        ValueSource::BuiltIn => "built-in default",
+    }
 }
 
 pub(crate) fn surface_name(s: SurfaceType) -> &'static str {

@@ -164,16 +164,19 @@ impl SiteTable {
     }
 }
 
-/// Source of a job default: [`ValueSource::BuiltIn`] when it equals the built-in value,
-/// else [`ValueSource::JobFile`].
-pub(crate) fn default_source<T: PartialEq>(
+/// Source of a job default: [`ValueSource::JobFile`] when the job file writes `key` out or
+/// the value differs from the built-in one, else [`ValueSource::BuiltIn`].
+pub(crate) fn job_default_source<T: PartialEq>(
+    explicit: &[String],
+    key: &str,
     defaults: &AtmosphereDefaults,
     field: impl Fn(&AtmosphereDefaults) -> T,
 ) -> ValueSource {
-    if field(defaults) == field(&AtmosphereDefaults::default()) {
-        ValueSource::BuiltIn
-    } else {
+    if explicit.iter().any(|k| k == key) || field(defaults) != field(&AtmosphereDefaults::default())
+    {
         ValueSource::JobFile
+    } else {
+        ValueSource::BuiltIn
     }
 }
 

@@ -107,6 +107,41 @@ pub struct InputSpec {
     pub defaults: AtmosphereDefaults,
     /// Keep only rows in this window (rows outside are counted, not rejected).
     pub period: Option<Period>,
+    /// Quantities whose empty or fill-value cells, in a column the workbook provides, may
+    /// take the site, job or built-in value (`[input] fallback`); `None`: [`DEFAULT_FALLBACK`].
+    pub fallback: Option<Vec<String>>,
+    /// `[atmosphere]` keys the job file writes out, so that a value equal to the built-in
+    /// one is still reported as the job file's.
+    pub defaults_set: Vec<String>,
+}
+
+/// Quantities that may fall back when `[input] fallback` is not given: precipitable water
+/// and ozone are often left blank in campaign files and their defaults are climatological.
+pub const DEFAULT_FALLBACK: &[&str] = &["ozone", "water"];
+
+/// Quantities `[input] fallback` may name: those whose cells can take a value from
+/// elsewhere (the site, the job, the built-in defaults, the other wavelengths).
+pub const FALLBACK_QUANTITIES: &[&str] = &[
+    "angstrom",
+    "aod",
+    "ssa",
+    "asymmetry",
+    "ozone",
+    "water",
+    "pressure",
+    "altitude",
+    "albedo",
+    "layer_top",
+];
+
+impl InputSpec {
+    /// Whether an empty or fill-value cell of `quantity` may take a value from elsewhere.
+    pub fn allows_fallback(&self, quantity: &str) -> bool {
+        match &self.fallback {
+            Some(list) => list.iter().any(|q| q == quantity),
+            None => DEFAULT_FALLBACK.contains(&quantity),
+        }
+    }
 }
 
 /// Where a row came from.
@@ -183,6 +218,20 @@ pub struct Assumption {
     pub rows: usize,
 }
 
+/// A site value read from key/value metadata (a metadata sheet or a line above the header),
+/// with the place it came from.
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
+pub struct MetadataValue {
+    /// The site the value belongs to.
+    pub site: String,
+    /// The `[[sites]]` field it fills: `name`, `latitude_deg`, `altitude_m`, ...
+    pub quantity: String,
+    /// The value in canonical units, as text.
+    pub value: String,
+    /// Where it was read: `campaign.xlsx, sheet "Station", cell B2 ("Latitude", "deg N")`.
+    pub origin: String,
+}
+
 /// An input file that was read.
 #[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct InputFile {
@@ -218,6 +267,8 @@ pub struct Ingested {
     /// File- or sheet-level warnings.
     pub warnings: Vec<String>,
     pub mapping: Vec<MappedColumn>,
+    /// Site values read from key/value metadata, with where each came from.
+    pub metadata: Vec<MetadataValue>,
     pub assumptions: Vec<Assumption>,
     pub files: Vec<InputFile>,
     pub counts: Counts,

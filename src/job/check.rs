@@ -52,7 +52,11 @@ pub fn check(a: &CheckArgs) -> anyhow::Result<Status> {
     }
     let warned: usize = ing.row_warnings.iter().filter(|w| !w.is_empty()).count();
     if warned > 0 {
-        println!("{warned} rows carry warnings (listed on the report's Results sheet):");
+        println!(
+            "{} {} warnings (listed on the report's Results sheet):",
+            ingest::rows_text(warned),
+            if warned == 1 { "carries" } else { "carry" }
+        );
         for (ws, o) in ing
             .row_warnings
             .iter()
@@ -73,8 +77,8 @@ pub fn check(a: &CheckArgs) -> anyhow::Result<Status> {
             println!("{l}");
         }
         println!(
-            "a run would compute {} rows and list {} on the Rejected sheet (exit status 1)",
-            ing.counts.computed,
+            "a run would compute {} and list {} on the Rejected sheet (exit status 1)",
+            ingest::rows_text(ing.counts.computed),
             ing.rejected.len()
         );
     }

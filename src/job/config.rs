@@ -60,6 +60,42 @@ pub struct InputSection {
     /// Canonical quantity → header text or column letter.
     #[serde(default)]
     pub columns: BTreeMap<String, String>,
+    /// Quantities whose empty or fill-value cells may take the site, job or built-in value;
+    /// default `["ozone", "water"]` ([`crate::ingest::DEFAULT_FALLBACK`]).
+    pub fallback: Option<Vec<String>>,
+}
+
+impl InputSection {
+    /// `fallback`, checked against the quantities that can fall back.
+    pub fn fallback_checked(&self) -> Result<Option<Vec<String>>, String> {
+        let Some(list) = &self.fallback else {
+            return Ok(None);
+        };
+        let known = crate::ingest::FALLBACK_QUANTITIES;
+        for q in list {
+            if !known.contains(&q.as_str()) {
+                return Err(format!(
+                    "[input] fallback names \"{q}\", which cannot fall back; expected some of {}",
+                    known
+                        .iter()
+                        .map(|k| format!("\"{k}\""))
+                        .collect::<Vec<_>>()
+                        .join(", ")
+                ));
+            }
+        }
+        Ok(Some(list.clone()))
+    }
+}
+
+/// The `[atmosphere]` keys a job file's text writes out (an explicit value, even one equal to
+/// the built-in default, is the job file's).
+pub fn atmosphere_keys(text: &str) -> Vec<String> {
+    text.parse::<toml::Table>()
+        .ok()
+        .and_then(|t| t.get("atmosphere").and_then(|a| a.as_table()).cloned())
+        .map(|a| a.keys().cloned().collect())
+        .unwrap_or_default()
 }
 
 /// `[solver]`: radiative-transfer settings, including the idealised switches.
@@ -277,6 +313,29 @@ mod tests {
     fn closure_names_are_kebab_case() {
         let job = parse("[solver]\nclosure = \"hemispheric-mean\"\n").unwrap();
         assert_eq!(job.solver.closure, Closure::HemisphericMean);
+    }
+
+    #[test]
+    fn fallback_names_are_checked() {
+        let job = parse("[input]\nfallback = [\"angstrom\", \"water\"]\n").unwrap();
+        assert_eq!(
+            job.input.fallback_checked().unwrap(),
+            Some(vec!["angstrom".to_string(), "water".to_string()])
+        );
+        let job = parse("[input]\nfallback = [\"latitude\"]\n").unwrap();
+        let err = job.input.fallback_checked().unwrap_err();
+        assert!(
+            err.contains("\"latitude\"") && err.contains("\"angstrom\""),
+            "{err}"
+        );
+        assert_eq!(parse("").unwrap().input.fallback_checked().unwrap(), None);
+    }
+
+    #[test]
+    fn explicit_atmosphere_keys_are_found() {
+        let keys = atmosphere_keys("[atmosphere]\nalbedo = 0.15\nozone_du = 300.0\n");
+        assert_eq!(keys, vec!["albedo".to_string(), "ozone_du".to_string()]);
+        assert!(atmosphere_keys("name = \"x\"\n").is_empty());
     }
 
     #[test]

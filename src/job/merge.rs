@@ -425,6 +425,8 @@ fn join(paths: &[PathBuf], bundles: &[Bundle]) -> anyhow::Result<Merged> {
         rejected: rejected.into_iter().map(|(_, r)| r.clone()).collect(),
         warnings: file_warnings,
         mapping,
+        // Where metadata-sheet values came from is said by each partition's run.
+        metadata: Vec::new(),
         assumptions,
         files,
         counts,

@@ -155,6 +155,11 @@ fn from_job(job: LoadedJob) -> anyhow::Result<Plan> {
         sites: f.sites.clone(),
         defaults: f.atmosphere.clone(),
         period: None,
+        fallback: f
+            .input
+            .fallback_checked()
+            .map_err(|m| anyhow::anyhow!("{where_}: {m}"))?,
+        defaults_set: super::config::atmosphere_keys(&job.text),
     };
     let template = if f.report.template.ends_with(".toml") || f.report.template.contains('/') {
         dir.join(&f.report.template).to_string_lossy().into_owned()

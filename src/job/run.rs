@@ -78,8 +78,8 @@ fn run_inner(a: &RunArgs, log: &Log) -> anyhow::Result<Status> {
     }
     if !ing.rejected.is_empty() {
         log.warn(&format!(
-            "{} rows rejected (listed on the Rejected sheet):",
-            ing.rejected.len()
+            "{} rejected (listed on the Rejected sheet):",
+            ingest::rows_text(ing.rejected.len())
         ));
         for l in summary::rejected_lines(&ing, 10) {
             log.warn(&l);
@@ -302,8 +302,8 @@ fn run_inner(a: &RunArgs, log: &Log) -> anyhow::Result<Status> {
     }
     let c = ing.counts;
     log.info(&format!(
-        "done: {} rows computed, {} rejected{}",
-        c.computed,
+        "done: {} computed, {} rejected{}",
+        ingest::rows_text(c.computed),
         c.rejected,
         if c.outside_period > 0 {
             format!(", {} outside the period", c.outside_period)
@@ -328,6 +328,8 @@ fn compute(ing: &Ingested, plan: &Plan, log: &Log) -> Vec<ObservationResult> {
         pb.inc(chunk.len() as u64);
     }
     pb.finish_and_clear();
+    // Rows placed by their date alone have no instantaneous values.
+    ingest::blank_instantaneous(&ing.row_warnings, &mut out);
     out
 }
 

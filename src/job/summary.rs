@@ -41,9 +41,34 @@ pub fn understanding(ing: &Ingested) -> Vec<String> {
             m.how
         ));
     }
-    if !ing.assumptions.is_empty() {
-        lines.push("assumed:".into());
-        for a in &ing.assumptions {
+    if !ing.metadata.is_empty() {
+        lines.push("site values read from metadata:".into());
+        for v in &ing.metadata {
+            lines.push(format!(
+                "  {} {} = {}  ← {}",
+                v.site, v.quantity, v.value, v.origin
+            ));
+        }
+    }
+    // Values the user gave outside the rows (site table, job file, fitted to the workbook)
+    // are not assumptions; built-in defaults are.
+    for (heading, given) in [
+        (
+            "taken from the site table, job file or workbook (not in the rows):",
+            true,
+        ),
+        ("assumed (built-in defaults):", false),
+    ] {
+        let list: Vec<_> = ing
+            .assumptions
+            .iter()
+            .filter(|a| (a.source != ValueSource::BuiltIn) == given)
+            .collect();
+        if list.is_empty() {
+            continue;
+        }
+        lines.push(heading.into());
+        for a in list {
             let src = match a.source {
                 ValueSource::Workbook => "workbook",
                 ValueSource::SiteTable => "site table",
@@ -51,8 +76,10 @@ pub fn understanding(ing: &Ingested) -> Vec<String> {
                 ValueSource::BuiltIn => "built-in default",
             };
             lines.push(format!(
-                "  {} = {} ({src}, {} rows)",
-                a.quantity, a.value, a.rows
+                "  {} = {} ({src}, {})",
+                a.quantity,
+                a.value,
+                crate::ingest::rows_text(a.rows)
             ));
         }
     }

@@ -292,7 +292,11 @@ pub fn write_about(
     }
 
     // Assumptions.
-    section(ws, &mut cur, "Assumptions and defaults that applied")?;
+    section(
+        ws,
+        &mut cur,
+        "Values not given in the rows, and where they came from",
+    )?;
     if ing.assumptions.is_empty() {
         pair(ws, &mut cur, "None", "every value came from the inputs")?;
     } else {
@@ -307,6 +311,21 @@ pub fn write_about(
                 a.rows as f64,
                 styles.class(super::frame::Class::Count),
             )?;
+            cur.r += 1;
+        }
+    }
+
+    // Site values read from key/value metadata.
+    if !ing.metadata.is_empty() {
+        section(ws, &mut cur, "Site values read from metadata")?;
+        table_head(ws, &mut cur, &["Site", "Field", "Value", "Read from"])?;
+        for v in &ing.metadata {
+            for (c, text) in [&v.site, &v.quantity, &v.value, &v.origin]
+                .into_iter()
+                .enumerate()
+            {
+                ws.write_string(cur.r, c as u16, clip(text).as_ref())?;
+            }
             cur.r += 1;
         }
     }
@@ -367,8 +386,11 @@ pub fn write_about(
     pair(
         ws,
         &mut cur,
-        "Created (UTC)",
-        &about.created_utc.format("%Y-%m-%dT%H:%M:%SZ").to_string(),
+        "Document date (UTC)",
+        &format!(
+            "{} (the latest observation's time, or SOURCE_DATE_EPOCH when set; not the time of the run, so that reruns give identical files)",
+            about.created_utc.format("%Y-%m-%dT%H:%M:%SZ")
+        ),
     )?;
     pair(
         ws,

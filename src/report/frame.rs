@@ -395,7 +395,7 @@ static COLUMNS: LazyLock<Vec<ColumnDef>> = LazyLock::new(|| {
         col(
             "row",
             "Row",
-            "as shown",
+            "",
             Count,
             "identity",
             Source::Get(|r| Value::Num(f64::from(r.origin.row))),

@@ -364,6 +364,10 @@ fn build_workbook(
             "hazebook {}, template {}",
             input.about.version, input.about.template_name
         ))
+        .set_custom_property(
+            "Generator",
+            format!("hazebook {}", input.about.version).as_str(),
+        )
         .set_creation_datetime(&created);
     wb.set_properties(&props);
     let styles = Styles::new(template);

@@ -462,7 +462,11 @@ pub fn write_summary(
     for s in &stats_list {
         headers.push((
             stats::statistic_header(s),
-            if *s == "count" { "count" } else { "in Unit" },
+            if *s == "count" {
+                "count"
+            } else {
+                "per row, see Unit"
+            },
         ));
     }
     let mut widths = Widths::default();
@@ -645,8 +649,8 @@ pub fn write_rejected(
     let headers: [(&str, &str); 7] = [
         ("File", ""),
         ("Sheet", ""),
-        ("Row", "as shown"),
-        ("Cell", "A1"),
+        ("Row", ""),
+        ("Cell", ""),
         ("Column", "quantity"),
         ("Value", "as found"),
         ("Reason", ""),
