@@ -30,7 +30,7 @@ pub fn init(a: &InitArgs) -> anyhow::Result<Status> {
         .as_ref()
         .map(|p| relative_to(p, &a.dir))
         .unwrap_or_else(|| "campaign.xlsx".into());
-    let text = job_text(&input_path, &columns);
+    let text = job_text(&toml_string(&input_path), &columns);
     // The text must parse as a job file: a guard against drift of the template below.
     super::config::parse(&text)
         .map_err(|e| anyhow::anyhow!("internal: generated job file does not parse: {e}"))?;
@@ -75,8 +75,8 @@ fn detected_columns(wb: &Path) -> anyhow::Result<String> {
         };
         if seen.insert(key.clone()) {
             s.push_str(&format!(
-                "{key} = {:?}   # column {}{}\n",
-                m.header,
+                "{key} = {}   # column {}{}\n",
+                toml_string(&m.header),
                 m.letter,
                 if m.sheet.is_empty() {
                     String::new()
@@ -87,6 +87,40 @@ fn detected_columns(wb: &Path) -> anyhow::Result<String> {
         }
     }
     Ok(s)
+}
+
+/// A TOML basic string of `s`: quotes, backslashes, control and invisible format characters
+/// (such as U+202E, U+200D) escaped as `\uXXXX`, so that the job file parses and reads as
+/// what it holds (TOML v1.0.0, "String").
+fn toml_string(s: &str) -> String {
+    let mut out = String::with_capacity(s.len() + 2);
+    out.push('"');
+    for c in s.chars() {
+        match c {
+            '"' => out.push_str("\\\""),
+            '\\' => out.push_str("\\\\"),
+            c if invisible(c) => {
+                let n = c as u32;
+                if n > 0xFFFF {
+                    out.push_str(&format!("\\U{n:08X}"));
+                } else {
+                    out.push_str(&format!("\\u{n:04X}"));
+                }
+            }
+            c => out.push(c),
+        }
+    }
+    out.push('"');
+    out
+}
+
+/// Control characters, line and paragraph separators and the format characters of Unicode
+/// (general category Cf) that show nothing or reorder text.
+fn invisible(c: char) -> bool {
+    matches!(c as u32,
+        0x00..=0x1F | 0x7F..=0x9F | 0xAD | 0x600..=0x605 | 0x61C | 0x6DD | 0x70F | 0x180E
+        | 0x200B..=0x200F | 0x2028..=0x202E | 0x2060..=0x2064 | 0x2066..=0x206F | 0xFEFF
+        | 0xFFF9..=0xFFFB | 0x110BD | 0x1D173..=0x1D17A | 0xE0001 | 0xE0020..=0xE007F)
 }
 
 fn job_text(input: &str, columns: &str) -> String {
@@ -103,7 +137,7 @@ fn job_text(input: &str, columns: &str) -> String {
 name = "campaign"            # {{job}} in output names
 
 [input]
-paths = [{input:?}]          # one or more files or glob patterns, read in order
+paths = [{input}]          # one or more files or glob patterns, read in order
 # sheet = "observations"     # data sheet; default: the first with a recognisable header
 # site_sheet = "sites"       # site metadata sheet; default: detected
 # header_row = 1             # as the spreadsheet shows it; default: detected
