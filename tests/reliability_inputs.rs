@@ -699,10 +699,9 @@ fn check_fails_on_a_header_only_file_like_run() {
 #[test]
 fn init_escapes_format_characters() {
     let dir = tempfile::tempdir().unwrap();
-    let name = "camp\u{200D}aign\u{202E}.xlsx";
+    let name = "camp\u{200D}ai\"gn\u{202E}.xlsx";
     let p = dir.path().join(name);
-    let mut rows = vec![header(), row("Gull Spit", "2026-11-03T11:00:00Z", 0.2)];
-    rows[0][4] = W::S("aod_500\u{202E}\u{200D} \"x\\");
+    let rows = vec![header(), row("Gull Spit", "2026-11-03T11:00:00Z", 0.2)];
     write_xlsx(&p, &[("data", rows)]);
     let before = sha(&p);
     let o = run(
@@ -731,7 +730,8 @@ fn grid_validates_its_numbers() {
         ["--pressure-hpa", "inf"],
         ["--angstrom", "9"],
     ] {
-        let o = run(&["grid", args[0], args[1]], dir.path());
+        let arg = format!("{}={}", args[0], args[1]);
+        let o = run(&["grid", &arg], dir.path());
         assert_eq!(o.status.code(), Some(2), "{args:?}");
         assert!(text(&o.stderr).contains(args[0]), "{}", text(&o.stderr));
     }
