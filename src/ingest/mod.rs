@@ -48,6 +48,88 @@ use polars::prelude::*;
 
 pub use read::{NO_TIME_OF_DAY, blank_instantaneous, lacks_time_of_day};
 pub use resolve::{fit_angstrom, interpolate_ln_wavelength};
+pub use validate::check_job_value;
+
+/// Move the rows whose radiative transfer gave no finite result (a solar position that
+/// cannot be computed, a non-finite flux) from the computed rows to the rejected ones, so
+/// that no row is reported with empty forcing as if it were computed. `results` are aligned
+/// with `ing.observations`; returns the results of the rows kept.
+pub fn reject_uncomputable(
+    ing: &mut Ingested,
+    results: Vec<crate::physics::ObservationResult>,
+    settings: &crate::physics::Settings,
+) -> Vec<crate::physics::ObservationResult> {
+    let faults: Vec<Option<&'static str>> = results
+        .iter()
+        .map(|r| {
+            let i = &r.instantaneous;
+            let d = &r.daily;
+            if !r.solar_zenith_deg.is_finite() {
+                Some("the solar position cannot be computed for this time and place")
+            } else if !r.aod_550.is_finite() {
+                Some("AOD(550 nm) is not a finite number")
+            } else if ![i.dre_toa, i.dre_sfc, i.dre_atm]
+                .iter()
+                .all(|x| x.is_finite())
+            {
+                Some("the instantaneous radiative effect is not a finite number")
+            } else if settings.daily_mean
+                && ![d.dre_toa, d.dre_sfc, d.dre_atm]
+                    .iter()
+                    .all(|x| x.is_finite())
+            {
+                Some("the 24-hour mean radiative effect is not a finite number")
+            } else {
+                None
+            }
+        })
+        .collect();
+    if faults.iter().all(Option::is_none) || faults.len() != ing.observations.len() {
+        return results;
+    }
+    let keep: Vec<bool> = faults.iter().map(Option::is_none).collect();
+    for (k, why) in faults.iter().enumerate() {
+        if let Some(why) = why {
+            let o = &ing.origins[k];
+            ing.rejected.push(Rejection {
+                file: o.file.clone(),
+                sheet: o.sheet.clone(),
+                row: o.row,
+                cell: String::new(),
+                column: String::new(),
+                value: String::new(),
+                reason: format!("{why}; the row cannot be computed"),
+            });
+        }
+    }
+    fn pick<T>(v: Vec<T>, keep: &[bool]) -> Vec<T> {
+        v.into_iter()
+            .zip(keep)
+            .filter(|(_, k)| **k)
+            .map(|(x, _)| x)
+            .collect()
+    }
+    let removed = keep.iter().filter(|k| !**k).count();
+    if ing.frame.height() == keep.len()
+        && let Ok(f) = ing
+            .frame
+            .filter(&BooleanChunked::from_slice("keep".into(), &keep))
+    {
+        ing.frame = f;
+    }
+    ing.sites = pick(std::mem::take(&mut ing.sites), &keep);
+    ing.origins = pick(std::mem::take(&mut ing.origins), &keep);
+    ing.observations = pick(std::mem::take(&mut ing.observations), &keep);
+    ing.row_warnings = pick(std::mem::take(&mut ing.row_warnings), &keep);
+    ing.counts.computed -= removed;
+    ing.counts.rejected += removed;
+    pick(results, &keep)
+}
+
+/// A site name as sites are compared (case and runs of blanks do not matter).
+pub fn site_name_key(name: &str) -> String {
+    resolve::site_key(name).into_owned()
+}
 pub use types::*;
 pub use validate::check_observation;
 
@@ -107,7 +189,9 @@ fn read_all(spec: &InputSpec, missing: &mut Option<Vec<String>>) -> Result<Inges
     let fill = FillValues::new(&spec.fill_values);
     let mut rows = Rows::default();
     let mut out = Ingested::default();
-    for path in &spec.paths {
+    let (paths, repeated) = distinct_paths(&spec.paths);
+    out.warnings.extend(repeated);
+    for path in paths {
         read_file(path, spec, &fill, &mut rows, &mut out, missing)
             .map_err(without_repeated_path)?;
     }
@@ -126,6 +210,44 @@ fn required(
         }
         (r, _) => r,
     }
+}
+
+/// The inputs with each file once (the same file named twice, by the same or another path,
+/// or matched by two patterns, would give false duplicates of all its rows), and a warning
+/// for each file named more than once.
+fn distinct_paths(paths: &[std::path::PathBuf]) -> (Vec<&Path>, Vec<String>) {
+    let mut keys: Vec<std::path::PathBuf> = Vec::with_capacity(paths.len());
+    let mut kept: Vec<&Path> = Vec::with_capacity(paths.len());
+    let mut extra: Vec<(usize, Vec<String>)> = Vec::new();
+    for p in paths {
+        let key = p.canonicalize().unwrap_or_else(|_| p.clone());
+        match keys.iter().position(|k| *k == key) {
+            Some(i) => match extra.iter_mut().find(|(j, _)| *j == i) {
+                Some((_, names)) => names.push(p.display().to_string()),
+                None => extra.push((i, vec![p.display().to_string()])),
+            },
+            None => {
+                keys.push(key);
+                kept.push(p.as_path());
+            }
+        }
+    }
+    let warnings = extra
+        .into_iter()
+        .map(|(i, names)| {
+            format!(
+                "{}: the file is listed {} times among the inputs (also as {}); it is read once",
+                kept[i].display(),
+                names.len() + 1,
+                names
+                    .iter()
+                    .map(|n| format!("\"{n}\""))
+                    .collect::<Vec<_>>()
+                    .join(", ")
+            )
+        })
+        .collect();
+    (kept, warnings)
 }
 
 fn read_file(
@@ -178,11 +300,12 @@ fn read_file(
                 }
             };
             let data_name = names[data_idx].clone();
-            let data_grid = match grids[data_idx].take() {
+            let mut data_grid = match grids[data_idx].take() {
                 Some(g) => g,
                 None => book.load(&data_name)?,
             };
-            let layout = read::data_layout(&data_grid, spec, &file, &data_name)?;
+            let mut layout = read::data_layout(&data_grid, spec, &file, &data_name)?;
+            fill_merged_sites(&mut book, &mut data_grid, &mut layout, &file, &data_name);
             // Site sheet.
             let mut sheet_sites = Vec::new();
             let site_idx = match &spec.site_sheet {
@@ -288,7 +411,10 @@ fn read_file(
                 header_row: Some(grid.row_number(0)),
                 ..spec.clone()
             };
-            let layout = read::data_layout(&grid, &spec_here, &file, "")?;
+            let mut layout = read::data_layout(&grid, &spec_here, &file, "")?;
+            if let cells::Grid::Frame(f) = &grid {
+                layout.warnings.extend(f.warnings.iter().cloned());
+            }
             let sites = SiteTable::merge(&[], &spec.sites);
             required(
                 read::require_columns(&layout, &grid, &file, "", &sites),
@@ -313,6 +439,46 @@ fn read_file(
         sheets: sheets_read,
     });
     Ok(())
+}
+
+/// Merged cells in the site column (one site written once beside several rows): every row
+/// of a merged range takes the site of the range's top-left cell, as the spreadsheet shows
+/// it, and a warning says so. The merges are read only when a site cell is empty.
+fn fill_merged_sites(
+    book: &mut sources::Workbook,
+    grid: &mut cells::Grid,
+    layout: &mut read::Layout,
+    file: &str,
+    sheet: &str,
+) {
+    let Some(col) = layout
+        .columns
+        .iter()
+        .find(|m| m.kind == detect::Kind::Site)
+        .map(|m| m.col)
+    else {
+        return;
+    };
+    let from = layout.data_start();
+    if !(from..grid.height()).any(|r| matches!(grid.cell(r, col), cells::Cell::Empty)) {
+        return;
+    }
+    let merges = book.merged(sheet);
+    if merges.is_empty() {
+        return;
+    }
+    let filled = grid.fill_merged(col, from, &merges);
+    if filled.is_empty() {
+        return;
+    }
+    let shown: Vec<&str> = filled.iter().take(5).map(String::as_str).collect();
+    layout.warnings.push(format!(
+        "{}: {} merged range(s) in the site column ({}{}): each row of a merged range takes the site of the range's top-left cell",
+        read::place(file, sheet),
+        filled.len(),
+        shown.join(", "),
+        if filled.len() > 5 { ", …" } else { "" }
+    ));
 }
 
 fn finish_sheet(ctx: &SheetContext<'_>, rows: &mut Rows, out: &mut Ingested) {

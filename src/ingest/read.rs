@@ -7,12 +7,14 @@ use std::sync::Arc;
 use chrono::{DateTime, TimeDelta, Utc};
 
 use super::cells::{
-    Cell, FillValues, Grid, NumberRead, column_index, column_letter, format_number, read_number,
+    Cell, FillValues, Grid, MAX_CELL_CHARS, NumberRead, clip, column_index, column_letter,
+    format_number, read_number, too_long,
 };
 use super::detect::{self, Kind, closest_header, parse_header};
 use super::resolve::{FxBuild, SiteTable, Sourced, fit_angstrom, job_default_source, site_key};
 use super::time::{
-    ParsedTime, TimeRead, combine, parse_offset_hours, read_date, read_time, read_time_of_day,
+    ParsedTime, TimeRead, combine, leap_second_read_as_next, parse_offset_hours, read_date,
+    read_time, read_time_of_day,
 };
 use super::types::*;
 use super::validate::{Check, check};
@@ -108,7 +110,7 @@ fn header_list(grid: &Grid, r: usize) -> Vec<(String, String)> {
         .filter_map(|c| {
             grid.cell(r, c)
                 .text()
-                .map(|t| (column_letter(grid.column_number(c)), t))
+                .map(|t| (column_letter(grid.column_number(c)), clip(&t).into_owned()))
         })
         .collect()
 }
@@ -482,6 +484,13 @@ pub(crate) fn read_site_sheet(
                     kind.name()
                 ),
             };
+            if let Cell::Text(t) = cell
+                && let Some(n) = too_long(t)
+            {
+                return Err(bad(format!(
+                    "the text has {n} characters, more than the {MAX_CELL_CHARS} a worksheet cell holds"
+                )));
+            }
             match kind {
                 Kind::Site => s.name = cell.text().unwrap_or_default(),
                 Kind::Surface if !fill.is_missing(&cell) => {
@@ -629,7 +638,10 @@ impl Problem {
         Problem {
             col: Some(m.col),
             column: m.name(),
-            value: cell.text().unwrap_or_default(),
+            value: cell
+                .text()
+                .map(|t| clip(&t).into_owned())
+                .unwrap_or_default(),
             reason,
         }
     }
@@ -683,16 +695,15 @@ pub(crate) fn read_rows(ctx: &SheetContext<'_>, rows: &mut Rows) {
         .collect();
     if !notes.is_empty() {
         rows.warnings.push(format!(
-            "{}: {} after the last data row {} no measurement and {} read as notes (rows {})",
+            "{}: {} row(s) after the last data row hold no measurement and are read as notes (rows {}{})",
             place(ctx.file, ctx.sheet),
-            super::rows_text(notes.len()),
-            if notes.len() == 1 { "holds" } else { "hold" },
-            if notes.len() == 1 { "is" } else { "are" },
-            notes
-                .iter()
-                .map(|n| n.to_string())
-                .collect::<Vec<_>>()
-                .join(", ")
+            notes.len(),
+            notes.iter().take(10).map(|n| n.to_string()).collect::<Vec<_>>().join(", "),
+            if notes.len() > 10 {
+                format!(" and {} more", notes.len() - 10)
+            } else {
+                String::new()
+            }
         ));
     }
     // Rows are read and checked in parallel (each on its own), then counted and checked for
@@ -703,9 +714,12 @@ pub(crate) fn read_rows(ctx: &SheetContext<'_>, rows: &mut Rows) {
         .into_par_iter()
         .with_min_len(1024)
         .filter_map(|r| {
-            let any_mapped = mapped_cols
-                .iter()
-                .any(|&c| !matches!(grid.cell(r, c), Cell::Empty));
+            // Blank text counts as empty (a csv line of spaces is a blank line).
+            let any_mapped = mapped_cols.iter().any(|&c| match grid.cell(r, c) {
+                Cell::Empty => false,
+                Cell::Text(t) => !t.trim().is_empty(),
+                _ => true,
+            });
             if !any_mapped && grid.row_is_empty(r) {
                 return None;
             }
@@ -860,6 +874,17 @@ fn read_row(ctx: &SheetContext<'_>, r: usize) -> Result<Option<Accepted>, Proble
     let mut bad_time_of_day: Option<Problem> = None;
     for m in &ctx.layout.columns {
         let cell = grid.cell(r, m.col);
+        if let Cell::Text(t) = cell
+            && let Some(n) = too_long(t)
+        {
+            return Err(Problem::at(
+                m,
+                &cell,
+                format!(
+                    "the text has {n} characters, more than the {MAX_CELL_CHARS} a worksheet cell holds (the report could not carry it)"
+                ),
+            ));
+        }
         match m.kind {
             Kind::Time => {
                 v.time_col = Some(m.col);
@@ -1021,7 +1046,7 @@ fn read_row(ctx: &SheetContext<'_>, r: usize) -> Result<Option<Accepted>, Proble
     // A readable date without a readable time of day: the row is placed on its date, its
     // 24-hour values computed and its instantaneous values left empty.
     let mut date_only: Option<(usize, String)> = None;
-    let parsed = match (v.time, v.date, v.time_of_day) {
+    let mut parsed = match (v.time, v.date, v.time_of_day) {
         (Some((p, _)), _, _) => p,
         (None, Some(d), Some((secs, off))) if bad_time_of_day.is_none() => combine(d, secs, off),
         (None, Some(d), _) => {
@@ -1044,6 +1069,15 @@ fn read_row(ctx: &SheetContext<'_>, r: usize) -> Result<Option<Accepted>, Proble
             });
         }
     };
+    if leap_second_read_as_next(&mut parsed) {
+        warnings.push(RowWarning {
+            cell: v.time_col.map(|c| grid.a1(r, c)).unwrap_or_default(),
+            message: format!(
+                "second 60 (a leap second) is read as the following instant, {}",
+                parsed.naive.format("%Y-%m-%d %H:%M:%S")
+            ),
+        });
+    }
     if v.aod.is_empty() {
         return Err(missing(Kind::Aod, "AOD"));
     }

@@ -9,8 +9,23 @@ use crate::ingest;
 
 /// Read and validate; print the mapping, warnings and rejected rows (or one JSON document).
 pub fn check(a: &CheckArgs) -> anyhow::Result<Status> {
-    let result = plan::build(&a.select, &Overrides::default())
-        .and_then(|p| ingest::read_inputs(&p.spec).map_err(anyhow::Error::from));
+    let result = plan::build(&a.select, &Overrides::default()).and_then(|p| {
+        let ing = ingest::read_inputs(&p.spec)?;
+        // As `run` does: a file with a header and no data rows has nothing to compute.
+        if ing.counts.read == 0 {
+            let inputs: Vec<String> = p
+                .spec
+                .paths
+                .iter()
+                .map(|p| p.display().to_string())
+                .collect();
+            anyhow::bail!(
+                "{}: no data rows found under the header; nothing to compute",
+                inputs.join(", ")
+            );
+        }
+        Ok(ing)
+    });
     let ing = match result {
         Ok(i) => i,
         Err(e) => {

@@ -263,9 +263,11 @@ impl LoadedJob {
     }
 }
 
-/// Parse job-file text; the error message carries the line and column.
+/// Parse job-file text; the error message carries the line and column. The values of
+/// `[[sites]]` and `[atmosphere]` are checked against the ranges of workbook values, and a
+/// site listed twice is refused.
 pub fn parse(text: &str) -> Result<JobFile, String> {
-    toml::from_str::<JobFile>(text).map_err(|e| {
+    let job = toml::from_str::<JobFile>(text).map_err(|e| {
         let (line, col) = e.span().map(|s| line_col(text, s.start)).unwrap_or((0, 0));
         let msg = e.message().trim().to_string();
         if line > 0 {
@@ -273,7 +275,114 @@ pub fn parse(text: &str) -> Result<JobFile, String> {
         } else {
             msg
         }
-    })
+    })?;
+    validate_values(text, &job)?;
+    Ok(job)
+}
+
+/// Longest site name: what a worksheet cell holds (Microsoft, "Excel specifications and
+/// limits"), as for names read from a workbook.
+const MAX_SITE_NAME_CHARS: usize = 32_767;
+
+/// Where each value of `[[sites]]` and `[atmosphere]` is written (a second, lenient parse
+/// that keeps the spans).
+#[derive(Deserialize, Default)]
+struct ValueSpans {
+    #[serde(default)]
+    sites: Vec<BTreeMap<String, toml::Spanned<toml::Value>>>,
+    #[serde(default)]
+    atmosphere: BTreeMap<String, toml::Spanned<toml::Value>>,
+}
+
+/// Range checks of the site table and the atmosphere defaults, with the line of the value.
+fn validate_values(text: &str, job: &JobFile) -> Result<(), String> {
+    let spans: ValueSpans = toml::from_str(text).unwrap_or_default();
+    let at = |v: Option<&toml::Spanned<toml::Value>>| {
+        v.map(|v| {
+            let (line, col) = line_col(text, v.span().start);
+            format!("line {line}, column {col}: ")
+        })
+        .unwrap_or_default()
+    };
+    for (i, site) in job.sites.iter().enumerate() {
+        let keys = spans.sites.get(i);
+        let here = |key: &str| at(keys.and_then(|k| k.get(key)));
+        let label = if site.name.trim().is_empty() {
+            format!("[[sites]] entry {}", i + 1)
+        } else {
+            format!("[[sites]] \"{}\"", site.name.trim())
+        };
+        if site.name.trim().is_empty() {
+            return Err(format!(
+                "{}{label}: name is empty: expected the site's name as the workbook writes it",
+                here("name")
+            ));
+        }
+        let chars = site.name.chars().count();
+        if chars > MAX_SITE_NAME_CHARS {
+            return Err(format!(
+                "{}[[sites]] entry {}: name has {chars} characters, more than the {MAX_SITE_NAME_CHARS} a worksheet cell holds",
+                here("name"),
+                i + 1
+            ));
+        }
+        for (key, value) in [
+            ("latitude_deg", site.latitude_deg),
+            ("longitude_deg", site.longitude_deg),
+            ("altitude_m", site.altitude_m),
+            ("pressure_hpa", site.pressure_hpa),
+            ("albedo", site.albedo),
+            ("utc_offset_hours", site.utc_offset_hours),
+        ] {
+            if let Some(v) = value
+                && let Err(why) = crate::ingest::check_job_value(key, v)
+            {
+                return Err(format!("{}{label}: {key}: {why}", here(key)));
+            }
+        }
+        let key = crate::ingest::site_name_key(&site.name);
+        if let Some(j) = job.sites[..i]
+            .iter()
+            .position(|s| crate::ingest::site_name_key(&s.name) == key)
+        {
+            let first = at(spans.sites.get(j).and_then(|k| k.get("name")));
+            let first = first.trim_end_matches(": ");
+            return Err(format!(
+                "{}{label}: the site is listed twice (first as \"{}\"{}{first}): give each site once",
+                here("name"),
+                job.sites[j].name,
+                if first.is_empty() { "" } else { ", at " },
+            ));
+        }
+    }
+    let a = &job.atmosphere;
+    let here = |key: &str| at(spans.atmosphere.get(key));
+    for (key, value) in [
+        ("albedo", Some(a.albedo)),
+        ("ozone_du", Some(a.ozone_du)),
+        ("water_cm", Some(a.water_cm)),
+        ("pressure_hpa", a.pressure_hpa),
+        ("altitude_m", Some(a.altitude_m)),
+        ("layer_top_km", Some(a.layer_top_km)),
+        ("layer_base_km", Some(a.layer_base_km)),
+        ("angstrom", Some(a.angstrom)),
+        ("utc_offset_hours", Some(a.utc_offset_hours)),
+    ] {
+        if let Some(v) = value
+            && let Err(why) = crate::ingest::check_job_value(key, v)
+        {
+            return Err(format!("{}[atmosphere] {key}: {why}", here(key)));
+        }
+    }
+    if a.layer_base_km >= a.layer_top_km {
+        return Err(format!(
+            "{}[atmosphere] layer_base_km = {}: expected below layer_top_km ({})",
+            here("layer_base_km"),
+            a.layer_base_km,
+            a.layer_top_km
+        ));
+    }
+    Ok(())
 }
 
 fn line_col(text: &str, offset: usize) -> (usize, usize) {
@@ -336,6 +445,36 @@ mod tests {
         let keys = atmosphere_keys("[atmosphere]\nalbedo = 0.15\nozone_du = 300.0\n");
         assert_eq!(keys, vec!["albedo".to_string(), "ozone_du".to_string()]);
         assert!(atmosphere_keys("name = \"x\"\n").is_empty());
+    }
+
+    #[test]
+    fn site_and_atmosphere_values_are_range_checked_with_their_line() {
+        let err = parse("[[sites]]\nname = \"A\"\nlatitude_deg = 400\n").unwrap_err();
+        assert!(err.starts_with("line 3"), "{err}");
+        assert!(
+            err.contains("latitude_deg") && err.contains("[−90, 90]"),
+            "{err}"
+        );
+        let err = parse("[[sites]]\nname = \"A\"\nalbedo = -1\n").unwrap_err();
+        assert!(err.starts_with("line 3") && err.contains("albedo"), "{err}");
+        let err = parse("[atmosphere]\nozone_du = 3\n").unwrap_err();
+        assert!(
+            err.starts_with("line 2") && err.contains("ozone_du"),
+            "{err}"
+        );
+        let err = parse("[atmosphere]\nwater_cm = nan\n").unwrap_err();
+        assert!(err.contains("finite"), "{err}");
+        let err = parse("[atmosphere]\nlayer_base_km = 3\n").unwrap_err();
+        assert!(err.contains("layer_base_km"), "{err}");
+        assert!(parse("[[sites]]\nname = \"A\"\nlatitude_deg = 40\nlongitude_deg = 350\n").is_ok());
+    }
+
+    #[test]
+    fn a_site_listed_twice_is_refused() {
+        let err = parse("[[sites]]\nname = \"Gull Spit\"\n[[sites]]\nname = \"gull  spit\"\n")
+            .unwrap_err();
+        assert!(err.starts_with("line 4") && err.contains("twice"), "{err}");
+        assert!(err.contains("line 2"), "{err}");
     }
 
     #[test]

@@ -76,6 +76,50 @@ fn check_list(name: &str, v: &[f64], lo: f64, hi: f64, lo_open: bool) -> anyhow:
     Ok(())
 }
 
+/// Most cases of one table (the product of the list lengths).
+const MAX_CASES: usize = 1_000_000;
+
+/// The single-valued options, with the ranges of the job file's `[solver]` and
+/// `[atmosphere]` values, and the size of the product.
+fn check_scalars(a: &GridArgs) -> anyhow::Result<()> {
+    let s = a.solar_constant;
+    if !(s.is_finite() && (1000.0..=1500.0).contains(&s)) {
+        bail!(
+            "--solar-constant {s}: expected a value in 1000–1500 W m⁻² (about 1361 today, Kopp & Lean 2011)"
+        );
+    }
+    for (name, key, v) in [
+        ("angstrom", "angstrom", a.angstrom),
+        ("ozone-du", "ozone_du", a.ozone_du),
+        ("water-cm", "water_cm", a.water_cm),
+        ("pressure-hpa", "pressure_hpa", a.pressure_hpa),
+    ] {
+        if let Err(why) = crate::ingest::check_job_value(key, v) {
+            bail!("--{name} {v}: {why}");
+        }
+    }
+    let geometry = if a.latitude.is_empty() && a.date.is_empty() {
+        a.mu0.len().max(if a.mu0.is_empty() { 4 } else { 1 })
+    } else {
+        a.latitude.len().max(1).saturating_mul(a.date.len().max(1))
+    };
+    let n = [
+        a.aod.len(),
+        a.ssa.len(),
+        a.g.len(),
+        a.albedo.len(),
+        geometry,
+    ]
+    .into_iter()
+    .fold(1usize, |p, k| p.saturating_mul(k));
+    if n > MAX_CASES {
+        bail!(
+            "the lists make {n} cases, more than the {MAX_CASES} of one table: split the grid into several runs"
+        );
+    }
+    Ok(())
+}
+
 fn cases(a: &GridArgs) -> anyhow::Result<Vec<Case>> {
     check_list("aod", &a.aod, 0.0, 10.0, false)?;
     check_list("ssa", &a.ssa, 0.0, 1.0, true)?;
@@ -93,6 +137,7 @@ fn cases(a: &GridArgs) -> anyhow::Result<Vec<Case>> {
     if let Some(t) = a.rayleigh_above {
         check_list("rayleigh-above", &[t], 0.0, 10.0, false)?;
     }
+    check_scalars(a)?;
     let daily = !a.latitude.is_empty() || !a.date.is_empty();
     let geometry: Vec<(Option<f64>, Option<f64>, Option<NaiveDate>)> = if daily {
         if a.latitude.is_empty() || a.date.is_empty() {

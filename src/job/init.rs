@@ -35,7 +35,7 @@ pub fn init(a: &InitArgs) -> anyhow::Result<Status> {
         .as_ref()
         .map(|p| super::config::stem(p))
         .unwrap_or_else(|| "campaign".into());
-    let text = job_text(&name, &input_path, found.as_ref());
+    let text = job_text(&name, &toml_string(&input_path), found.as_ref());
     // The text must parse as a job file: a guard against drift of the template below.
     super::config::parse(&text)
         .map_err(|e| anyhow::anyhow!("internal: generated job file does not parse: {e}"))?;
@@ -180,8 +180,8 @@ fn detected_columns(ing: &ingest::Ingested) -> String {
         };
         if seen.insert(key.clone()) {
             s.push_str(&format!(
-                "{key} = {:?}   # column {}{}\n",
-                m.header,
+                "{key} = {}   # column {}{}\n",
+                toml_string(&m.header),
                 m.letter,
                 if m.sheet.is_empty() {
                     String::new()
@@ -250,6 +250,40 @@ fn sites_text(ing: &ingest::Ingested, located: bool, stem: &str) -> String {
     s
 }
 
+/// A TOML basic string of `s`: quotes, backslashes, control and invisible format characters
+/// (such as U+202E, U+200D) escaped as `\uXXXX`, so that the job file parses and reads as
+/// what it holds (TOML v1.0.0, "String").
+fn toml_string(s: &str) -> String {
+    let mut out = String::with_capacity(s.len() + 2);
+    out.push('"');
+    for c in s.chars() {
+        match c {
+            '"' => out.push_str("\\\""),
+            '\\' => out.push_str("\\\\"),
+            c if invisible(c) => {
+                let n = c as u32;
+                if n > 0xFFFF {
+                    out.push_str(&format!("\\U{n:08X}"));
+                } else {
+                    out.push_str(&format!("\\u{n:04X}"));
+                }
+            }
+            c => out.push(c),
+        }
+    }
+    out.push('"');
+    out
+}
+
+/// Control characters, line and paragraph separators and the format characters of Unicode
+/// (general category Cf) that show nothing or reorder text.
+fn invisible(c: char) -> bool {
+    matches!(c as u32,
+        0x00..=0x1F | 0x7F..=0x9F | 0xAD | 0x600..=0x605 | 0x61C | 0x6DD | 0x70F | 0x180E
+        | 0x200B..=0x200F | 0x2028..=0x202E | 0x2060..=0x2064 | 0x2066..=0x206F | 0xFEFF
+        | 0xFFF9..=0xFFFB | 0x110BD | 0x1D173..=0x1D17A | 0xE0001 | 0xE0020..=0xE007F)
+}
+
 fn job_text(name: &str, input: &str, found: Option<&Found>) -> String {
     let columns = match found {
         Some(f) if !f.columns.is_empty() => f.columns.clone(),
@@ -259,7 +293,7 @@ fn job_text(name: &str, input: &str, found: Option<&Found>) -> String {
         .map(|f| f.note.iter().map(|l| format!("# {l}\n")).collect())
         .unwrap_or_default();
     let sites = found.map(|f| f.sites.clone()).unwrap_or_default();
-    let name = toml::Value::String(name.to_string()).to_string();
+    let name = toml_string(name);
     format!(
         r#"# hazebook job file: everything a scheduled rerun needs.
 # Run it with:  hazebook run job.toml --period previous-month
@@ -268,7 +302,7 @@ fn job_text(name: &str, input: &str, found: Option<&Found>) -> String {
 name = {name}            # {{job}} in output names
 
 [input]
-paths = [{input:?}]          # one or more files or glob patterns, read in order
+paths = [{input}]          # one or more files or glob patterns, read in order
 # sheet = "observations"     # data sheet; default: the first with a recognisable header
 # site_sheet = "sites"       # site metadata sheet; default: detected
 # header_row = 1             # as the spreadsheet shows it; default: detected

@@ -114,6 +114,11 @@ fn run_inner(a: &RunArgs, log: &Log) -> anyhow::Result<Status> {
     }
     let t = Instant::now();
     let results = compute(&ing, &plan, log);
+    let before = ing.rejected.len();
+    let results = ingest::reject_uncomputable(&mut ing, results, &plan.settings);
+    for r in &ing.rejected[before..] {
+        log.warn(&format!("rejected after the radiative transfer: {r}"));
+    }
     let t_physics = t.elapsed().as_secs_f64();
 
     let created = created_time(&ing);

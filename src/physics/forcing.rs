@@ -848,9 +848,12 @@ fn compute_with(
             (z.to_radians().cos(), z)
         }
     };
-    // NaN zenith (bad coordinates) is treated as a sun that cannot be placed: no flux.
-    let sun_up = zenith_deg < 90.0 && mu0 > 0.0;
-    flags.sun_below_horizon = !sun_up;
+    // A NaN zenith (a time or place the solar position cannot be computed for) is no
+    // night: the sun cannot be placed, the instantaneous effect is NaN (not zero) and the
+    // row is not flagged as below the horizon; the caller rejects such a row.
+    let placed = zenith_deg.is_finite() && mu0.is_finite();
+    let sun_up = placed && zenith_deg < 90.0 && mu0 > 0.0;
+    flags.sun_below_horizon = placed && !sun_up;
     flags.low_sun = sun_up && zenith_deg > LOW_SUN_ZENITH_DEG;
     let instantaneous = if sun_up {
         // (1 AU/r)² of the UTC day from Spencer's series (accuracy ~1e-4; a second SPA
@@ -862,8 +865,19 @@ fn compute_with(
         };
         let (c, a) = evaluate(&prep, settings, &[(mu0, distance)], scratch);
         effect(c, a, aod_550, dp)
-    } else {
+    } else if placed {
         effect(Fluxes::default(), Fluxes::default(), aod_550, dp)
+    } else {
+        let unplaced = Fluxes {
+            toa_down: f64::NAN,
+            toa_up: f64::NAN,
+            toa_net: f64::NAN,
+            sfc_down_direct: f64::NAN,
+            sfc_down_diffuse: f64::NAN,
+            sfc_up: f64::NAN,
+            sfc_net: f64::NAN,
+        };
+        effect(unplaced, unplaced, aod_550, dp)
     };
 
     // 24-hour mean (the day's geometry also gives the daylight length and polar flags when
