@@ -444,6 +444,9 @@ fn site_sheet_and_job_overrides() {
     let mut s = spec(&[&p]);
     s.columns.insert("site".into(), "A".into());
     s.columns.insert("time".into(), "when".into());
+    // The blank albedo cells take the site's value: a fallback the job allows (an empty cell
+    // in a provided column is otherwise a rejection; README, "Empty and fill-value cells").
+    s.fallback = Some(vec!["albedo".into()]);
     s.period = Some(Period {
         label: "2024-01-10".into(),
         start: utc(2024, 1, 10, 0, 0),

@@ -7,7 +7,7 @@ use hazebook::physics::Settings;
 use hazebook::report::{self, WriteOptions, template};
 use report_support::*;
 
-/// A report written without compression, so its package parts can be read as text.
+/// A report and the text of all its package parts.
 fn stored_report(dir: &std::path::Path) -> (std::path::PathBuf, String) {
     let (ing, res) = sample(40);
     let settings = Settings::default();
@@ -19,8 +19,16 @@ fn stored_report(dir: &std::path::Path) -> (std::path::PathBuf, String) {
         ..WriteOptions::default()
     };
     report::write_report_with(&path, &tpl, &input, &opts).unwrap();
-    let bytes = std::fs::read(&path).unwrap();
-    (path, String::from_utf8_lossy(&bytes).into_owned())
+    // Every part of the package, unzipped and joined, to search as text.
+    let mut zip = zip::ZipArchive::new(std::fs::File::open(&path).unwrap()).unwrap();
+    let mut package = String::new();
+    for i in 0..zip.len() {
+        let mut part = zip.by_index(i).unwrap();
+        let mut bytes = Vec::new();
+        std::io::Read::read_to_end(&mut part, &mut bytes).unwrap();
+        package.push_str(&String::from_utf8_lossy(&bytes));
+    }
+    (path, package)
 }
 
 #[test]

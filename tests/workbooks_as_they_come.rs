@@ -395,7 +395,13 @@ fn a_dated_row_without_a_time_is_placed_in_its_month() {
     let csv = std::fs::read_to_string(csv_path).unwrap();
     let mut lines = csv.lines().filter(|l| !l.starts_with('#'));
     let header: Vec<&str> = lines.next().unwrap().split(',').collect();
-    let col = |name: &str| header.iter().position(|h| *h == name).unwrap();
+    // csv column names carry their unit in brackets ("dre_toa [W m-2]").
+    let col = |name: &str| {
+        header
+            .iter()
+            .position(|h| h.split(" [").next() == Some(name))
+            .unwrap()
+    };
     let rows: Vec<Vec<&str>> = lines.map(|l| l.split(',').collect()).collect();
     assert_eq!(rows.len(), 2, "{csv}");
     let placed = &rows[1];

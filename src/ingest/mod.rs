@@ -61,10 +61,29 @@ pub fn reject_uncomputable(
 ) -> Vec<crate::physics::ObservationResult> {
     let faults: Vec<Option<&'static str>> = results
         .iter()
-        .map(|r| {
+        .enumerate()
+        .map(|(k, r)| {
             let i = &r.instantaneous;
             let d = &r.daily;
-            if !r.solar_zenith_deg.is_finite() {
+            // A row placed by its date alone has its instantaneous part left empty on
+            // purpose (`read::blank_instantaneous`); only its 24-hour values must be finite.
+            let date_only = ing
+                .row_warnings
+                .get(k)
+                .is_some_and(|w| lacks_time_of_day(w));
+            if date_only {
+                if !r.aod_550.is_finite() {
+                    Some("AOD(550 nm) is not a finite number")
+                } else if settings.daily_mean
+                    && ![d.dre_toa, d.dre_sfc, d.dre_atm]
+                        .iter()
+                        .all(|x| x.is_finite())
+                {
+                    Some("the 24-hour mean radiative effect is not a finite number")
+                } else {
+                    None
+                }
+            } else if !r.solar_zenith_deg.is_finite() {
                 Some("the solar position cannot be computed for this time and place")
             } else if !r.aod_550.is_finite() {
                 Some("AOD(550 nm) is not a finite number")

@@ -1050,6 +1050,13 @@ fn read_row(ctx: &SheetContext<'_>, r: usize) -> Result<Option<Accepted>, Proble
         (Some((p, _)), _, _) => p,
         (None, Some(d), Some((secs, off))) if bad_time_of_day.is_none() => combine(d, secs, off),
         (None, Some(d), _) => {
+            // A time cell that holds a definite wrong value (a duration of a day or more, an
+            // offset beyond ±14 h) is a fault of the cell, not a missing time: reject the row.
+            if let Some(p) = bad_time_of_day
+                .take_if(|p| p.reason.contains("duration") || p.reason.contains("UTC offset"))
+            {
+                return Err(p);
+            }
             let time_col = first_col(Kind::Time).map(|m| m.col);
             let found = match &bad_time_of_day {
                 Some(p) if !p.value.is_empty() => format!("\"{}\"", p.value),

@@ -35,7 +35,9 @@ pub fn init(a: &InitArgs) -> anyhow::Result<Status> {
         .as_ref()
         .map(|p| super::config::stem(p))
         .unwrap_or_else(|| "campaign".into());
-    let text = job_text(&name, &toml_string(&input_path), found.as_ref());
+    // Invisible characters left in comments (a workbook or header name quoted there) are
+    // shown as their escapes too; inside strings the escape is the same character.
+    let text = visible(&job_text(&name, &toml_string(&input_path), found.as_ref()));
     // The text must parse as a job file: a guard against drift of the template below.
     super::config::parse(&text)
         .map_err(|e| anyhow::anyhow!("internal: generated job file does not parse: {e}"))?;
@@ -236,7 +238,7 @@ fn sites_text(ing: &ingest::Ingested, located: bool, stem: &str) -> String {
             None if key == "name" => {
                 s.push_str(&format!(
                     "name = {}   # FILL IN if the site has another name\n",
-                    toml::Value::String(stem.to_string())
+                    toml_string(stem)
                 ));
             }
             None if required && !located => {
@@ -273,6 +275,30 @@ fn toml_string(s: &str) -> String {
     }
     out.push('"');
     out
+}
+
+/// `s` with every invisible character other than a line break written as its TOML escape
+/// (`\\uXXXX`), which in a basic string stands for the same character.
+fn visible(s: &str) -> String {
+    s.split('\n')
+        .map(|line| {
+            line.chars()
+                .map(|c| {
+                    if invisible(c) {
+                        let n = c as u32;
+                        if n > 0xFFFF {
+                            format!("\\U{n:08X}")
+                        } else {
+                            format!("\\u{n:04X}")
+                        }
+                    } else {
+                        c.to_string()
+                    }
+                })
+                .collect::<String>()
+        })
+        .collect::<Vec<_>>()
+        .join("\n")
 }
 
 /// Control characters, line and paragraph separators and the format characters of Unicode

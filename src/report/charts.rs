@@ -21,7 +21,7 @@ use super::xlsx::{self, Styles, Widths, put_number, stat_value};
 /// test `palette_is_distinguishable_in_colour_blind_vision` checks it), with lightness
 /// L* 28–72 so that every colour shows on white.
 pub const SITE_PALETTE: [u32; 8] = [
-    0x882266, 0xDD9933, 0x33AACC, 0x333399, 0x99BB77, 0x5A4A2E, 0x7777DD, 0xAA8888,
+    0x882266, 0xDD9933, 0x33AACC, 0x3A3AA0, 0x99BB77, 0x5A4A2E, 0x7777DD, 0xAA8888,
 ];
 
 /// Most points plotted per site on a scatter chart (every k-th row beyond that; the fit uses
