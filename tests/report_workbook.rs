@@ -58,7 +58,7 @@ fn results_headers_units_and_numbers_match_the_given_results() {
     let r = sheet(&path, "Results");
     // The two-stream error columns appear only when the run estimates it (off here).
     let cols: Vec<_> = frame::columns()
-        .into_iter()
+        .iter()
         .filter(|c| c.group != "solver_error")
         .collect();
     for (j, c) in cols.iter().enumerate() {

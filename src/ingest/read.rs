@@ -1159,11 +1159,13 @@ fn read_row(ctx: &SheetContext<'_>, r: usize) -> Result<Option<Accepted>, Proble
                 .to_string()
         } else if entry.is_none() {
             format!(
-                "no latitude/longitude: the row gives none and site \"{site_name}\" is not in the site table"
+                "no latitude/longitude: the row gives none and site \"{}\" is not in the site table",
+                super::cells::clip(&site_name)
             )
         } else {
             format!(
-                "no latitude/longitude: the row gives none and the site table gives none for \"{site_name}\""
+                "no latitude/longitude: the row gives none and the site table gives none for \"{}\"",
+                super::cells::clip(&site_name)
             )
         };
         return Err(Problem {
@@ -1175,7 +1177,7 @@ fn read_row(ctx: &SheetContext<'_>, r: usize) -> Result<Option<Accepted>, Proble
             } else {
                 "latitude".into()
             },
-            value: site_name.clone(),
+            value: super::cells::clip(&site_name).into_owned(),
             reason,
         });
     };

@@ -163,7 +163,7 @@ impl SolverSection {
                 "[solver] fixed_cos_zenith = {mu}: expected a number in (0, 1]"
             ));
         }
-        if !(2..=MAX_STREAMS).contains(&self.streams) || self.streams % 2 != 0 {
+        if !(2..=MAX_STREAMS).contains(&self.streams) || !self.streams.is_multiple_of(2) {
             return Err(format!(
                 "[solver] streams = {}: expected an even number of streams from 2 to {MAX_STREAMS} \
                  (4 is the default; 8 or 16 for reference work)",

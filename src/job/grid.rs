@@ -128,7 +128,7 @@ fn cases(a: &GridArgs) -> anyhow::Result<Vec<Case>> {
     if !(a.wavelength.is_finite() && (280.0..=4000.0).contains(&a.wavelength)) {
         bail!("--wavelength {}: expected 280–4000 nm", a.wavelength);
     }
-    if !(2..=MAX_STREAMS).contains(&a.streams) || a.streams % 2 != 0 {
+    if !(2..=MAX_STREAMS).contains(&a.streams) || !a.streams.is_multiple_of(2) {
         bail!(
             "--streams {}: expected an even number from 2 to {MAX_STREAMS}",
             a.streams

@@ -124,7 +124,7 @@ impl Quadrature {
     ///
     /// Returns `None` for an odd or out-of-range N.
     pub fn new(streams: usize) -> Option<Self> {
-        if !(2..=MAX_STREAMS).contains(&streams) || streams % 2 != 0 {
+        if !(2..=MAX_STREAMS).contains(&streams) || !streams.is_multiple_of(2) {
             return None;
         }
         let n = streams / 2;
@@ -556,8 +556,8 @@ fn solve_at(
         let mut rhs = albedo_beam / PI * beam[nl] - zb[i];
         for c in 0..2 * n {
             let mut v = last.at_bottom[(i, c)];
-            for j in 0..n {
-                v -= 2.0 * albedo_diffuse * wmu[j] * last.at_bottom[(n + j, c)];
+            for (j, w) in wmu.iter().enumerate() {
+                v -= 2.0 * albedo_diffuse * w * last.at_bottom[(n + j, c)];
             }
             a[(row0 + i, c0 + c)] = v;
         }
