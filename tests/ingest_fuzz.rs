@@ -156,7 +156,13 @@ fn csv_field(g: &G) -> String {
 }
 
 fn write_csv(path: &Path, header: &[String], rows: &[Vec<G>]) {
-    let mut s = header.join(",");
+    // Header fields are quoted like the cells: a header with a line break or a comma stays
+    // one field of the header line.
+    let mut s = header
+        .iter()
+        .map(|h| csv_field(&G::Text(h.clone())))
+        .collect::<Vec<_>>()
+        .join(",");
     s.push('\n');
     for row in rows {
         s.push_str(&row.iter().map(csv_field).collect::<Vec<_>>().join(","));
