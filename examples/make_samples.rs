@@ -1455,76 +1455,20 @@ fn ods_content(sheets: &[StationSheet]) -> String {
     x
 }
 
-/// CRC-32 (IEEE 802.3, reflected polynomial 0xEDB88320), as the zip format uses.
-fn crc32(data: &[u8]) -> u32 {
-    let mut crc = 0xFFFF_FFFFu32;
-    for &b in data {
-        crc ^= u32::from(b);
-        for _ in 0..8 {
-            crc = if crc & 1 != 0 {
-                (crc >> 1) ^ 0xEDB8_8320
-            } else {
-                crc >> 1
-            };
-        }
-    }
-    !crc
-}
-
-/// A zip archive of stored (uncompressed) entries, in the order given, with the zip format's
-/// zero date (1980-01-01 00:00) on every entry (PKWARE APPNOTE 6.3, §4.3 and §4.4).
+/// A zip archive of stored (uncompressed) entries in the given order, with the zip format's
+/// earliest timestamp on every entry so that the bytes are the same on every run (written with
+/// the `zip` crate).
 fn stored_zip(entries: &[(&str, &[u8])]) -> Vec<u8> {
-    let mut out = Vec::new();
-    let mut central = Vec::new();
-    let le16 = |v: u16| v.to_le_bytes();
-    let le32 = |v: u32| v.to_le_bytes();
+    use std::io::Write;
+    let mut w = zip::ZipWriter::new(std::io::Cursor::new(Vec::new()));
+    let options = zip::write::SimpleFileOptions::default()
+        .compression_method(zip::CompressionMethod::Stored)
+        .last_modified_time(zip::DateTime::default());
     for (name, data) in entries {
-        let crc = crc32(data);
-        let offset = out.len() as u32;
-        let size = data.len() as u32;
-        // Local file header: version 2.0, no flags, stored, time 0, date 1980-01-01.
-        out.extend_from_slice(&le32(0x0403_4b50));
-        out.extend_from_slice(&le16(20));
-        out.extend_from_slice(&le16(0));
-        out.extend_from_slice(&le16(0));
-        out.extend_from_slice(&le16(0));
-        out.extend_from_slice(&le16(0x21));
-        out.extend_from_slice(&le32(crc));
-        out.extend_from_slice(&le32(size));
-        out.extend_from_slice(&le32(size));
-        out.extend_from_slice(&le16(name.len() as u16));
-        out.extend_from_slice(&le16(0));
-        out.extend_from_slice(name.as_bytes());
-        out.extend_from_slice(data);
-        // Central directory entry.
-        central.extend_from_slice(&le32(0x0201_4b50));
-        central.extend_from_slice(&le16(20));
-        central.extend_from_slice(&le16(20));
-        central.extend_from_slice(&le16(0));
-        central.extend_from_slice(&le16(0));
-        central.extend_from_slice(&le16(0));
-        central.extend_from_slice(&le16(0x21));
-        central.extend_from_slice(&le32(crc));
-        central.extend_from_slice(&le32(size));
-        central.extend_from_slice(&le32(size));
-        central.extend_from_slice(&le16(name.len() as u16));
-        // Extra field, comment, disk number, internal and external attributes.
-        central.extend_from_slice(&[0; 12]);
-        central.extend_from_slice(&le32(offset));
-        central.extend_from_slice(name.as_bytes());
+        w.start_file(*name, options).expect("zip entry");
+        w.write_all(data).expect("zip entry data");
     }
-    let cd_offset = out.len() as u32;
-    let n = entries.len() as u16;
-    out.extend_from_slice(&central);
-    // End of central directory record.
-    out.extend_from_slice(&le32(0x0605_4b50));
-    out.extend_from_slice(&[0; 4]);
-    out.extend_from_slice(&le16(n));
-    out.extend_from_slice(&le16(n));
-    out.extend_from_slice(&le32(central.len() as u32));
-    out.extend_from_slice(&le32(cd_offset));
-    out.extend_from_slice(&[0; 2]);
-    out
+    w.finish().expect("zip archive").into_inner()
 }
 
 /// Write an OpenDocument spreadsheet: the `mimetype` entry first and stored (OpenDocument 1.2,
