@@ -70,7 +70,9 @@ fn network_rows(site: bool, shift: f64) -> Vec<Vec<W>> {
 }
 
 fn site_sheet() -> Vec<Vec<W>> {
-    let mut rows = vec![header_cells(&["stn", "name", "lat", "lon", "elev_m", "type"])];
+    let mut rows = vec![header_cells(&[
+        "stn", "name", "lat", "lon", "elev_m", "type",
+    ])];
     for (code, name, lat, lon, elev) in STATIONS {
         rows.push(vec![S(code), S(name), N(lat), N(lon), N(elev), S("rural")]);
     }
@@ -211,7 +213,11 @@ fn without_a_site_column_one_place_is_one_site_named_from_the_file() {
     let rows: Vec<Vec<W>> = network_rows(false, 0.0).into_iter().take(7).collect();
     write_xlsx(&p, &[("data", rows)]);
     let ing = read(&p);
-    assert!(ing.sites.iter().all(|s| s == "harlsby-2024"), "{:?}", ing.sites);
+    assert!(
+        ing.sites.iter().all(|s| s == "harlsby-2024"),
+        "{:?}",
+        ing.sites
+    );
     assert!(
         ing.site_rules[0].ends_with(
             "no site column; every row is at one place (52.310°N 4.120°E, within 0.001°): one site \"harlsby-2024\" (named from the file name)"
@@ -230,7 +236,9 @@ fn without_a_site_column_one_place_is_one_site_named_from_the_file() {
 fn a_moving_platform_is_one_platform() {
     let dir = tempfile::TempDir::new().unwrap();
     let p = tmp(&dir, "cruise.xlsx");
-    let mut rows = vec![header_cells(&["time", "lat", "lon", "aod_500", "ssa_550", "g_550"])];
+    let mut rows = vec![header_cells(&[
+        "time", "lat", "lon", "aod_500", "ssa_550", "g_550",
+    ])];
     for k in 0..12 {
         rows.push(vec![
             Str(format!("2024-06-01 {:02}:00:00", 6 + k)),
@@ -331,9 +339,14 @@ fn the_report_names_sites_beside_their_codes_with_one_series_each() {
     // The About sheet accounts for every column and says how sites were found.
     let about = strings(&report, "About");
     let flat: Vec<&str> = about.iter().flatten().map(String::as_str).collect();
-    assert!(flat.iter().any(|c| c.starts_with("ignored: not a quantity")), "{flat:?}");
     assert!(
-        flat.iter().any(|c| c.contains("joined with the site sheet \"sites\"")),
+        flat.iter()
+            .any(|c| c.starts_with("ignored: not a quantity")),
+        "{flat:?}"
+    );
+    assert!(
+        flat.iter()
+            .any(|c| c.contains("joined with the site sheet \"sites\"")),
         "{flat:?}"
     );
     assert!(flat.contains(&"angstrom (440–870 nm pair)"), "{flat:?}");
@@ -350,7 +363,10 @@ fn partitions_by_code_or_by_name_are_the_same() {
     let p = tmp(&dir, "network.xlsx");
     network(&p, 0.0);
     let mut results = Vec::new();
-    for (k, asked) in ["KSW", "Kestle Swale", "kestle swale (ksw)"].iter().enumerate() {
+    for (k, asked) in ["KSW", "Kestle Swale", "kestle swale (ksw)"]
+        .iter()
+        .enumerate()
+    {
         let out = format!("out{k}");
         let o = run(
             &["run", p.to_str().unwrap(), "--out", &out, "--site", asked],
@@ -361,7 +377,11 @@ fn partitions_by_code_or_by_name_are_the_same() {
         let r = strings(&report, "Results");
         let c = r[0].iter().position(|h| h == "Site").unwrap();
         let sites: BTreeSet<String> = r[2..].iter().map(|row| row[c].clone()).collect();
-        assert_eq!(sites, BTreeSet::from(["Kestle Swale (KSW)".to_string()]), "{asked}");
+        assert_eq!(
+            sites,
+            BTreeSet::from(["Kestle Swale (KSW)".to_string()]),
+            "{asked}"
+        );
         assert_eq!(r.len() - 2, 6, "{asked}");
         results.push(r);
     }

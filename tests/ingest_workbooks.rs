@@ -5,8 +5,7 @@ mod ingest_support;
 
 use chrono::{TimeZone, Utc};
 use hazebook::ingest::{
-    IngestError, Period, SiteInfo, SurfaceType, ValueSource, fit_angstrom,
-    read_inputs,
+    IngestError, Period, SiteInfo, SurfaceType, ValueSource, fit_angstrom, read_inputs,
 };
 use hazebook::job::summary::understanding;
 use hazebook::physics::Surface;

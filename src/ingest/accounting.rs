@@ -215,7 +215,11 @@ impl Ingested {
 /// A site-name column without a site column is the site column.
 pub(crate) fn site_name_alone_is_site(columns: &mut [Mapped]) {
     if !columns.iter().any(|m| m.kind == Kind::Site) {
-        for m in columns.iter_mut().filter(|m| m.kind == Kind::SiteName).take(1) {
+        for m in columns
+            .iter_mut()
+            .filter(|m| m.kind == Kind::SiteName)
+            .take(1)
+        {
             m.kind = Kind::Site;
         }
     }
@@ -391,7 +395,14 @@ mod tests {
         assert_eq!(assumption_kind("ozone_du"), "ozone");
         assert_eq!(assumption_kind("angstrom"), "angstrom");
         assert_eq!(assumption_kind("layer_top_km"), "layer_top");
-        for q in ["ozone", "water", "pressure", "altitude", "layer_top", "angstrom"] {
+        for q in [
+            "ozone",
+            "water",
+            "pressure",
+            "altitude",
+            "layer_top",
+            "angstrom",
+        ] {
             assert!(kind_named(q).is_some(), "{q}");
         }
     }

@@ -6,10 +6,10 @@ use std::sync::Arc;
 
 use chrono::{DateTime, TimeDelta, Utc};
 
+use super::accounting::Ignored;
 use super::cells::{
     Cell, FillValues, Grid, NumberRead, column_index, column_letter, format_number, read_number,
 };
-use super::accounting::Ignored;
 use super::detect::{self, Kind, closest_header, parse_header};
 use super::resolve::{FxBuild, SiteTable, Sourced, default_source, fit_angstrom, site_key};
 use super::time::{
@@ -278,7 +278,10 @@ pub(crate) fn data_layout(
             .wavelength_nm
             .or(from_header.as_ref().and_then(|h| h.wavelength_nm));
         let unit = if km.unit.is_empty() {
-            from_header.as_ref().map(|h| h.unit.clone()).unwrap_or_default()
+            from_header
+                .as_ref()
+                .map(|h| h.unit.clone())
+                .unwrap_or_default()
         } else {
             km.unit
         };

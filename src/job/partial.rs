@@ -14,7 +14,8 @@ use std::path::Path;
 use chrono::{DateTime, Utc};
 
 use crate::ingest::{
-    Assumption, Counts, IgnoredColumn, InputFile, MappedColumn, Period, Rejection, RowOrigin, RowWarning,
+    Assumption, Counts, IgnoredColumn, InputFile, MappedColumn, Period, Rejection, RowOrigin,
+    RowWarning,
 };
 use crate::physics::{Observation, ObservationResult, Settings};
 

@@ -136,8 +136,10 @@ pub fn site_key_for<'a>(ing: &'a Ingested, asked: &str) -> Option<&'a str> {
         let full = label
             .strip_suffix(&format!(" ({key})"))
             .unwrap_or(label.as_str());
-        (label.eq_ignore_ascii_case(a) || full.eq_ignore_ascii_case(a) || key.eq_ignore_ascii_case(a))
-            .then_some(key.as_str())
+        (label.eq_ignore_ascii_case(a)
+            || full.eq_ignore_ascii_case(a)
+            || key.eq_ignore_ascii_case(a))
+        .then_some(key.as_str())
     })
 }
 

@@ -368,8 +368,17 @@ pub fn write_about(
         }
         cur.r += 1;
     }
-    for m in ing.mapping.iter().filter(|m| m.wavelength_pair_nm.is_some()) {
-        pair(ws, &mut cur, "Ångström wavelength pair", &angstrom_pair_note(m, settings))?;
+    for m in ing
+        .mapping
+        .iter()
+        .filter(|m| m.wavelength_pair_nm.is_some())
+    {
+        pair(
+            ws,
+            &mut cur,
+            "Ångström wavelength pair",
+            &angstrom_pair_note(m, settings),
+        )?;
     }
 
     // Sites.
@@ -379,7 +388,12 @@ pub fn write_about(
             pair(ws, &mut cur, "How sites were found", r)?;
         }
         for (key, label) in &ing.site_labels {
-            pair(ws, &mut cur, key, &format!("shown as \"{label}\" (the key stays {key})"))?;
+            pair(
+                ws,
+                &mut cur,
+                key,
+                &format!("shown as \"{label}\" (the key stays {key})"),
+            )?;
         }
     }
 
