@@ -2,7 +2,7 @@
 //!
 //! Exit status: 0 success; 1 success with rejected rows (report written, rows listed on the
 //! Rejected sheet); 2 run failed and nothing was written (bad arguments, unreadable input,
-//! missing column, bad job file).
+//! missing column, bad job file, strict mode refusing an ignored column or a default).
 
 use std::path::PathBuf;
 
@@ -15,7 +15,8 @@ use crate::report::SideFormat;
 const EXIT_HELP: &str = "Exit status:
   0  success: every row computed and the report written
   1  success with rejected rows: report written, see its Rejected sheet
-  2  failed: nothing written (bad arguments, unreadable input, missing column, bad job file)";
+  2  failed: nothing written (bad arguments, unreadable input, missing column, bad job file,
+     strict mode refusing an ignored column or a built-in default)";
 
 const CHECK_EXIT_HELP: &str = "Exit status:
   0  every row would be computed
@@ -79,6 +80,11 @@ pub struct SelectArgs {
     /// Reference date for previous-month and {date} (YYYY-MM-DD); default: today (UTC).
     #[arg(long, value_name = "YYYY-MM-DD")]
     pub today: Option<String>,
+    /// Fail (exit 2, nothing written) when a column is not read without being listed in the
+    /// job file's [input] ignore_columns, or a built-in default applies to a quantity not in
+    /// [input] defaults_allowed. Same as [input] strict = true.
+    #[arg(long)]
+    pub strict: bool,
 }
 
 #[derive(Debug, Args, Clone)]

@@ -8,7 +8,7 @@ mod binary_support;
 mod ingest_support;
 
 use binary_support::{run, samples, text};
-use hazebook::ingest::{InputSpec, ValueSource, mapping_summary, read_inputs};
+use hazebook::ingest::{InputSpec, ValueSource, read_inputs};
 use ingest_support::{W, write_xlsx};
 
 /// A single-site workbook: data sheet without site or coordinate columns (a metadata line
@@ -88,7 +88,7 @@ fn key_value_metadata_sheet_locates_a_single_site_workbook() {
             wb.display()
         )
     );
-    let summary = mapping_summary(&ing);
+    let summary = hazebook::job::summary::understanding(&ing).join("\n");
     assert!(
         summary.contains("site values read from metadata:")
             && summary.contains("cell B6 (\"Time zone\")")

@@ -14,6 +14,12 @@
 //! separator-insensitively, with the wavelength read from them (`aod_500`, `AOD 440 nm`,
 //! `SSA(675)`, `asymmetry 870nm`).
 //!
+//! Every header column is accounted for: read ([`Ingested::mapping`],
+//! [`Ingested::site_columns`]) or ignored with the reason ([`Ingested::ignored`]); see
+//! [`Ingested::column_accounts`]. Every row gets a site: from its site column (joined with the
+//! site table; full names become [`Ingested::site_labels`]), else by one place, fixed places
+//! or a moving platform, as [`Ingested::site_rules`] says.
+//!
 //! # Required and optional quantities
 //! Required: time, AOD, SSA, g, and a location (latitude and longitude in the row, or a site
 //! column whose sites the site sheet or the job file locates). The Ångström exponent comes from
@@ -32,11 +38,13 @@
 //! values as measured: `aod_<λ>nm`, `ssa_<λ>nm`, `asymmetry_<λ>nm` (null where a row or file
 //! has none).
 
+mod accounting;
 mod cells;
 mod detect;
 mod metadata;
 mod read;
 mod resolve;
+mod sites;
 mod sources;
 mod time;
 mod types;
@@ -49,6 +57,8 @@ use polars::prelude::*;
 pub use read::{NO_TIME_OF_DAY, blank_instantaneous, lacks_time_of_day};
 pub use resolve::{fit_angstrom, interpolate_ln_wavelength};
 pub use validate::check_job_value;
+pub use accounting::{ColumnAccount, strict_problems};
+pub use sites::{SITE_TOLERANCE_KM, distance_km};
 
 /// Move the rows whose radiative transfer gave no finite result (a solar position that
 /// cannot be computed, a non-finite flux) from the computed rows to the rejected ones, so
@@ -160,6 +170,36 @@ use sources::FileKind;
 /// Wavelength as used in names: `500`, `532.5`.
 pub(crate) fn format_wavelength(w: f64) -> String {
     cells::format_number((w * 10.0).round() / 10.0)
+}
+
+/// A header as header detection reads it.
+#[derive(Debug, Clone, PartialEq)]
+pub struct HeaderReading {
+    /// Quantity, as the job file names it without wavelength: `aod`, `angstrom`, `site`.
+    pub quantity: &'static str,
+    /// Wavelength written in the header [nm].
+    pub wavelength_nm: Option<f64>,
+    /// For the Ångström exponent: the wavelength pair written in the header [nm].
+    pub wavelength_pair_nm: Option<(f64, f64)>,
+    /// Unit written in the header (normalised), or empty.
+    pub unit: String,
+}
+
+/// How header detection reads one header text (`AOD 500 nm`, `Ångström exp. 440/870`,
+/// `stn`); `None` when it names no quantity.
+pub fn read_header(text: &str) -> Option<HeaderReading> {
+    detect::parse_header(text).map(|m| HeaderReading {
+        quantity: m.kind.name(),
+        wavelength_nm: m.wavelength_nm,
+        wavelength_pair_nm: m.pair_nm,
+        unit: m.unit,
+    })
+}
+
+/// Every (quantity, spelling) of the header table, as normalised names (lower case, words
+/// separated by one space).
+pub fn header_spellings() -> Vec<(&'static str, &'static str)> {
+    detect::spellings().map(|(k, n)| (k.name(), n)).collect()
 }
 
 /// Read every input of `spec`.
@@ -361,7 +401,15 @@ fn read_file(
                         place(&file, &names[i])
                     ),
                 })?;
-                sheet_sites = read::read_site_sheet(&g, header, fill, &file, &names[i])?;
+                let site_sheet = read::read_site_sheet(&g, header, fill, &file, &names[i])?;
+                sheet_sites = site_sheet.sites;
+                out.site_columns.extend(site_sheet.mapped);
+                out.ignored.extend(accounting::to_ignored_columns(
+                    &site_sheet.ignored,
+                    &file,
+                    &names[i],
+                    spec,
+                ));
                 sheets_read.push(names[i].clone());
             }
             if site_idx.is_none() {
@@ -417,7 +465,7 @@ fn read_file(
                 sites: &sites,
                 spec,
             };
-            finish_sheet(&ctx, rows, out);
+            finish_sheet(&ctx, rows, out, site_idx.map(|i| names[i].as_str()));
         }
         FileKind::Csv | FileKind::Parquet => {
             let grid = if kind == FileKind::Csv {
@@ -449,7 +497,7 @@ fn read_file(
                 sites: &sites,
                 spec,
             };
-            finish_sheet(&ctx, rows, out);
+            finish_sheet(&ctx, rows, out, None);
         }
     }
     out.files.push(InputFile {
@@ -500,11 +548,31 @@ fn fill_merged_sites(
     ));
 }
 
-fn finish_sheet(ctx: &SheetContext<'_>, rows: &mut Rows, out: &mut Ingested) {
+fn finish_sheet(
+    ctx: &SheetContext<'_>,
+    rows: &mut Rows,
+    out: &mut Ingested,
+    site_sheet: Option<&str>,
+) {
     out.warnings.extend(ctx.layout.warnings.iter().cloned());
     out.mapping
         .extend(ctx.layout.mapped_columns(ctx.file, ctx.sheet));
+    out.ignored.extend(accounting::to_ignored_columns(
+        &ctx.layout.ignored,
+        ctx.file,
+        ctx.sheet,
+        ctx.spec,
+    ));
+    let start = rows.accepted.len();
     read::read_rows(ctx, rows);
+    let these = &mut rows.accepted[start..];
+    let column_rule = sites::site_column_rule(ctx, these, site_sheet);
+    let unsited_rule = sites::name_unsited(ctx, these);
+    for rule in [column_rule, unsited_rule].into_iter().flatten() {
+        out.site_rules.push(rule.line);
+        out.warnings.extend(rule.warning);
+    }
+    sites::labels(ctx.sites, these, &mut out.site_labels);
 }
 
 /// Layout messages are written with their place first (`campaign.xlsx, sheet "x": ...`); the
@@ -546,6 +614,7 @@ fn finish(rows: Rows, mut out: Ingested) -> Result<Ingested, IngestError> {
     let (assumptions, frame) =
         rayon::join(|| tally_assumptions(&accepted), || build_frame(&accepted));
     out.assumptions = assumptions;
+    accounting::resemblance_warnings(&mut out);
     out.frame = frame.map_err(|e| IngestError::Layout {
         path: String::new(),
         message: format!("cannot build the table of accepted rows: {e}"),
@@ -826,88 +895,4 @@ pub fn rows_text(n: usize) -> String {
     } else {
         format!("{n} rows")
     }
-}
-
-/// A text summary for the command line: files, mapping (header text and column letter of
-/// each quantity), row counts, assumptions and warnings.
-pub fn mapping_summary(ing: &Ingested) -> String {
-    let mut s = String::new();
-    for f in &ing.files {
-        s.push_str(&format!(
-            "input {} (sha256 {})\n",
-            f.path,
-            &f.sha256[..f.sha256.len().min(12)]
-        ));
-        for sheet in &f.sheets {
-            let cols: Vec<&MappedColumn> = ing
-                .mapping
-                .iter()
-                .filter(|m| m.file == f.path && &m.sheet == sheet)
-                .collect();
-            if cols.is_empty() {
-                let place = format!("sheet \"{sheet}\", cell");
-                let what = if ing.metadata.iter().any(|v| v.origin.contains(&place)) {
-                    "site metadata (label, value, unit rows)"
-                } else {
-                    "site table"
-                };
-                s.push_str(&format!("  sheet \"{sheet}\": {what}\n"));
-                continue;
-            }
-            s.push_str(&format!("  sheet \"{sheet}\":\n"));
-            for m in cols {
-                s.push_str(&format!("    {m}\n"));
-            }
-        }
-        if f.sheets.is_empty() {
-            for m in ing.mapping.iter().filter(|m| m.file == f.path) {
-                s.push_str(&format!("    {m}\n"));
-            }
-        }
-    }
-    let c = ing.counts;
-    s.push_str(&format!(
-        "rows: {} read = {} computed + {} rejected + {} outside the period\n",
-        c.read, c.computed, c.rejected, c.outside_period
-    ));
-    if !ing.metadata.is_empty() {
-        s.push_str("site values read from metadata:\n");
-        for v in &ing.metadata {
-            s.push_str(&format!(
-                "  {} {} = {} <- {}\n",
-                v.site, v.quantity, v.value, v.origin
-            ));
-        }
-    }
-    for (heading, given) in [
-        (
-            "taken from the site table, job file or workbook (not in the rows):",
-            true,
-        ),
-        ("assumed (built-in defaults):", false),
-    ] {
-        let list: Vec<&Assumption> = ing
-            .assumptions
-            .iter()
-            .filter(|a| (a.source != ValueSource::BuiltIn) == given)
-            .collect();
-        if list.is_empty() {
-            continue;
-        }
-        s.push_str(heading);
-        s.push('\n');
-        for a in list {
-            s.push_str(&format!(
-                "  {} = {} ({}; {})\n",
-                a.quantity,
-                a.value,
-                read::source_label(a.source),
-                rows_text(a.rows)
-            ));
-        }
-    }
-    for w in &ing.warnings {
-        s.push_str(&format!("warning: {w}\n"));
-    }
-    s
 }

@@ -6,6 +6,7 @@ use std::sync::Arc;
 
 use chrono::{DateTime, TimeDelta, Utc};
 
+use super::accounting::Ignored;
 use super::cells::{
     Cell, FillValues, Grid, MAX_CELL_CHARS, NumberRead, clip, column_index, column_letter,
     format_number, read_number, too_long,
@@ -37,6 +38,8 @@ pub(crate) struct Mapped {
     pub scale: f64,
     /// For time columns: offset stated by the header or units row [h].
     pub stated_offset_hours: Option<f64>,
+    /// For the Ångström exponent: the wavelength pair from the header or units row [nm].
+    pub pair_nm: Option<(f64, f64)>,
 }
 
 impl Mapped {
@@ -61,6 +64,8 @@ pub(crate) struct Layout {
     pub warnings: Vec<String>,
     /// A date column and a time-of-day column.
     pub split_date_time: bool,
+    /// Header columns that are not read, with the reason.
+    pub ignored: Vec<super::accounting::Ignored>,
 }
 
 impl Layout {
@@ -91,6 +96,7 @@ impl Layout {
                 letter: m.letter.clone(),
                 unit: m.unit.clone(),
                 how: m.how.to_string(),
+                wavelength_pair_nm: m.pair_nm.map(|(a, b)| [a, b]),
             })
             .collect()
     }
@@ -140,7 +146,7 @@ fn scale_for(kind: Kind, unit: &str) -> Result<f64, String> {
             Kind::Aod | Kind::Ssa | Kind::Asymmetry | Kind::Albedo | Kind::Angstrom,
             "1" | "unitless" | "dimensionless" | "fraction" | "none" | "0 1",
         ) => ok(1.0),
-        (Kind::Time | Kind::Date | Kind::Site | Kind::Surface, _) => ok(1.0),
+        (Kind::Time | Kind::Date | Kind::Site | Kind::SiteName | Kind::Surface, _) => ok(1.0),
         _ => Err(format!(
             "unit \"{u}\" is not understood for {}",
             kind.name()
@@ -191,11 +197,19 @@ pub(crate) fn data_layout(
     };
     let mut warnings = Vec::new();
     let mut columns: Vec<Mapped> = Vec::new();
+    let mut ignored: Vec<Ignored> = Vec::new();
     for c in 0..grid.width() {
         let Some(text) = grid.cell(header_row, c).text() else {
             continue;
         };
+        let letter = column_letter(grid.column_number(c));
         let Some(m) = parse_header(&text) else {
+            ignored.push(Ignored::new(
+                c,
+                &letter,
+                &text,
+                detect::unrecognised_reason(&text),
+            ));
             continue;
         };
         let candidate = Mapped {
@@ -203,11 +217,12 @@ pub(crate) fn data_layout(
             kind: m.kind,
             wavelength_nm: m.wavelength_nm,
             header: text.clone(),
-            letter: column_letter(grid.column_number(c)),
+            letter,
             unit: m.unit,
             how: "detected",
             scale: 1.0,
             stated_offset_hours: None,
+            pair_nm: m.pair_nm,
         };
         if let Some(prev) = columns.iter().find(|p| p.name() == candidate.name()) {
             warnings.push(format!(
@@ -217,6 +232,16 @@ pub(crate) fn data_layout(
                 candidate.name(),
                 prev.letter,
                 prev.header
+            ));
+            ignored.push(Ignored::new(
+                c,
+                &candidate.letter,
+                &text,
+                format!(
+                    "names {} again (already column {}); only the first is read",
+                    candidate.name(),
+                    prev.letter
+                ),
             ));
             continue;
         }
@@ -255,7 +280,10 @@ pub(crate) fn data_layout(
             .wavelength_nm
             .or(from_header.as_ref().and_then(|h| h.wavelength_nm));
         let unit = if km.unit.is_empty() {
-            from_header.map(|h| h.unit).unwrap_or_default()
+            from_header
+                .as_ref()
+                .map(|h| h.unit.clone())
+                .unwrap_or_default()
         } else {
             km.unit
         };
@@ -269,11 +297,27 @@ pub(crate) fn data_layout(
             how: "job file",
             scale: 1.0,
             stated_offset_hours: None,
+            pair_nm: from_header.as_ref().and_then(|h| h.pair_nm),
         };
         let name = m.name();
+        ignored.retain(|i| i.col != col);
+        for p in columns
+            .iter()
+            .filter(|p| p.col != col && p.name() == name && p.how == "detected")
+        {
+            ignored.push(Ignored::new(
+                p.col,
+                &p.letter,
+                &p.header,
+                format!("the job file maps {name} to column {} instead", m.letter),
+            ));
+        }
         columns.retain(|p| p.col != col && !(p.name() == name && p.how == "detected"));
         columns.push(m);
     }
+    let dropped = super::accounting::apply_ignore_list(spec, &mut columns, &mut ignored);
+    ignored.extend(dropped);
+    super::accounting::site_name_alone_is_site(&mut columns);
     columns.sort_by_key(|m| m.col);
     // Units row.
     let mapped_cols: Vec<usize> = columns.iter().map(|m| m.col).collect();
@@ -295,6 +339,12 @@ pub(crate) fn data_layout(
             m.unit = detect::normalised(&u);
             if m.unit == "percent" || u.trim() == "%" {
                 m.unit = "percent".into();
+            }
+            if m.kind == Kind::Angstrom
+                && let Some((pair, rest)) = detect::units_wavelength_pair(&u)
+            {
+                m.pair_nm = m.pair_nm.or(Some(pair));
+                m.unit = rest;
             }
         }
         if matches!(m.kind, Kind::Time | Kind::Date) {
@@ -342,12 +392,15 @@ pub(crate) fn data_layout(
             ));
         }
     }
+    super::accounting::headerless_columns(grid, header_row, &columns, &mut ignored);
+    ignored.sort_by_key(|i| i.col);
     Ok(Layout {
         header_row,
         units_row,
         columns,
         warnings,
         split_date_time,
+        ignored,
     })
 }
 
@@ -440,7 +493,32 @@ pub(crate) fn require_columns(
     })
 }
 
-/// Read a site sheet into site records.
+/// A site sheet read: its sites, and how each of its header columns was read or why not.
+pub(crate) struct SiteSheet {
+    pub sites: Vec<SiteInfo>,
+    pub mapped: Vec<MappedColumn>,
+    pub ignored: Vec<Ignored>,
+}
+
+/// Quantities a site sheet gives per site.
+fn is_site_property(kind: Kind) -> bool {
+    matches!(
+        kind,
+        Kind::Site
+            | Kind::SiteName
+            | Kind::Latitude
+            | Kind::Longitude
+            | Kind::Altitude
+            | Kind::Pressure
+            | Kind::Albedo
+            | Kind::Surface
+            | Kind::UtcOffset
+    )
+}
+
+/// Read a site sheet into site records. The site column (`site`, `stn`, `station id`, ...) is
+/// the key the data rows name; a name column beside it (`name`, `site name`) gives the full
+/// name shown beside the key in the report. A name column alone is the key.
 ///
 /// Errors: a value outside its range or not a number (the site table is small and
 /// hand-made: fix it rather than guess).
@@ -450,21 +528,71 @@ pub(crate) fn read_site_sheet(
     fill: &FillValues,
     file: &str,
     sheet: &str,
-) -> Result<Vec<SiteInfo>, IngestError> {
+) -> Result<SiteSheet, IngestError> {
     let here = place(file, sheet);
     let mut cols: Vec<(usize, Kind, f64)> = Vec::new();
-    for c in 0..grid.width() {
-        if let Some(m) = grid
-            .cell(header_row, c)
-            .text()
-            .and_then(|t| parse_header(&t))
-        {
-            if cols.iter().any(|(_, k, _)| *k == m.kind) {
-                continue;
-            }
-            let scale = scale_for(m.kind, &m.unit).unwrap_or(1.0);
-            cols.push((c, m.kind, scale));
+    let mut read_columns = Vec::new();
+    let mut ignored = Vec::new();
+    let headers: Vec<(usize, String, Option<detect::HeaderMeaning>)> = (0..grid.width())
+        .filter_map(|c| {
+            let t = grid.cell(header_row, c).text()?;
+            let m = parse_header(&t);
+            Some((c, t, m))
+        })
+        .collect();
+    let has_key = headers
+        .iter()
+        .any(|(_, _, m)| m.as_ref().is_some_and(|m| m.kind == Kind::Site));
+    for (c, text, m) in headers {
+        let letter = column_letter(grid.column_number(c));
+        let Some(m) = m else {
+            let why = detect::unrecognised_reason(&text);
+            ignored.push(Ignored::new(c, &letter, &text, why));
+            continue;
+        };
+        let kind = if m.kind == Kind::SiteName && !has_key {
+            Kind::Site
+        } else {
+            m.kind
+        };
+        if !is_site_property(kind) {
+            ignored.push(Ignored::new(
+                c,
+                &letter,
+                &text,
+                format!(
+                    "{} is not a property of a site: a site sheet gives site, site_name, latitude, longitude, altitude, pressure, albedo, surface, utc_offset",
+                    kind.name()
+                ),
+            ));
+            continue;
         }
+        if let Some((pc, _, _)) = cols.iter().find(|(_, k, _)| *k == kind) {
+            ignored.push(Ignored::new(
+                c,
+                &letter,
+                &text,
+                format!(
+                    "names {} again (already column {}); only the first is read",
+                    kind.name(),
+                    column_letter(grid.column_number(*pc))
+                ),
+            ));
+            continue;
+        }
+        let scale = scale_for(kind, &m.unit).unwrap_or(1.0);
+        cols.push((c, kind, scale));
+        read_columns.push(MappedColumn {
+            file: file.to_string(),
+            sheet: sheet.to_string(),
+            quantity: kind.name().to_string(),
+            wavelength_nm: None,
+            header: text,
+            letter,
+            unit: m.unit,
+            how: "site table".into(),
+            wavelength_pair_nm: None,
+        });
     }
     let mut start = header_row + 1;
     let mapped: Vec<usize> = cols.iter().map(|c| c.0).collect();
@@ -493,6 +621,12 @@ pub(crate) fn read_site_sheet(
             }
             match kind {
                 Kind::Site => s.name = cell.text().unwrap_or_default(),
+                Kind::SiteName => {
+                    s.full_name = cell
+                        .text()
+                        .map(|t| t.trim().to_string())
+                        .filter(|t| !t.is_empty() && !fill.is_missing(&cell))
+                }
                 Kind::Surface if !fill.is_missing(&cell) => {
                     s.surface = Some(parse_surface(&cell).ok_or_else(|| {
                         bad(format!("expected land or ocean, found {}", cell.display()))
@@ -540,7 +674,11 @@ pub(crate) fn read_site_sheet(
             out.push(s);
         }
     }
-    Ok(out)
+    Ok(SiteSheet {
+        sites: out,
+        mapped: read_columns,
+        ignored,
+    })
 }
 
 pub(crate) fn parse_surface(cell: &Cell<'_>) -> Option<SurfaceType> {
@@ -591,6 +729,8 @@ pub(crate) struct Accepted {
     pub site: String,
     /// The site as compared for duplicates.
     pub site_key: Arc<str>,
+    /// Full name from the row's site-name column, if any.
+    pub site_full_name: Option<String>,
     pub observation: Observation,
     pub warnings: Vec<RowWarning>,
     pub assumptions: Vec<(&'static str, Val, ValueSource)>,
@@ -654,6 +794,7 @@ struct RowValues {
     time_of_day: Option<(f64, Option<i32>)>,
     time_col: Option<usize>,
     site: Option<String>,
+    site_full_name: Option<String>,
     latitude: Option<f64>,
     longitude: Option<f64>,
     altitude: Option<f64>,
@@ -949,6 +1090,11 @@ fn read_row(ctx: &SheetContext<'_>, r: usize) -> Result<Option<Accepted>, Proble
                     v.site = cell.text();
                 }
             }
+            Kind::SiteName => {
+                if !fill.is_missing(&cell) {
+                    v.site_full_name = cell.text();
+                }
+            }
             Kind::Surface => {
                 if !fill.is_missing(&cell) {
                     v.surface = Some(parse_surface(&cell).ok_or_else(|| {
@@ -1184,6 +1330,18 @@ fn read_row(ctx: &SheetContext<'_>, r: usize) -> Result<Option<Accepted>, Proble
     if longitude >= 180.0 {
         longitude -= 360.0;
     }
+    if let (Some(e), Some(_), Some(_)) = (entry, v.latitude, v.longitude)
+        && !ctx.spec.moving_platform
+        && let Some(w) = super::sites::coordinate_warning(
+            ctx.spec,
+            e,
+            latitude,
+            longitude,
+            first_col(Kind::Latitude).map(|m| grid.a1(r, m.col)),
+        )
+    {
+        warnings.push(w);
+    }
     let altitude_m = from_site(
         &mut assumptions,
         &site_rc,
@@ -1377,6 +1535,14 @@ fn read_row(ctx: &SheetContext<'_>, r: usize) -> Result<Option<Accepted>, Proble
         ));
     }
     let angstrom = if let Some(a) = v.angstrom {
+        if let Some(m) = first_col(Kind::Angstrom)
+            && let Some(w) = super::accounting::outside_angstrom_pair(m, aod_wavelength_nm)
+        {
+            warnings.push(RowWarning {
+                cell: grid.a1(r, m.col),
+                message: w,
+            });
+        }
         a
     } else if let Some(a) = fit_angstrom(&aod) {
         let wls: Vec<String> = aod
@@ -1470,6 +1636,7 @@ fn read_row(ctx: &SheetContext<'_>, r: usize) -> Result<Option<Accepted>, Proble
         },
         site: site_name,
         site_key: site_rc,
+        site_full_name: v.site_full_name,
         observation,
         warnings,
         assumptions,

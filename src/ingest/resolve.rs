@@ -19,6 +19,8 @@ pub(crate) struct SiteEntry {
     pub name: String,
     /// `name`, shared by the assumptions of its rows.
     pub rc: std::sync::Arc<str>,
+    /// Full name shown beside the key in the report.
+    pub full_name: Option<String>,
     pub latitude_deg: Option<Sourced<f64>>,
     pub longitude_deg: Option<Sourced<f64>>,
     pub altitude_m: Option<Sourced<f64>>,
@@ -33,6 +35,7 @@ impl Default for SiteEntry {
         Self {
             name: String::new(),
             rc: std::sync::Arc::from(""),
+            full_name: None,
             latitude_deg: None,
             longitude_deg: None,
             altitude_m: None,
@@ -128,6 +131,9 @@ impl SiteTable {
                 put(&mut e.pressure_hpa, s.pressure_hpa);
                 put(&mut e.albedo, s.albedo);
                 put(&mut e.utc_offset_hours, s.utc_offset_hours);
+                if let Some(f) = s.full_name.as_ref().filter(|f| !f.trim().is_empty()) {
+                    e.full_name = Some(f.trim().to_string());
+                }
                 if let Some(value) = s.surface {
                     e.surface = Some(Sourced { value, source });
                 }

@@ -24,9 +24,9 @@ pub fn check(a: &CheckArgs) -> anyhow::Result<Status> {
                 inputs.join(", ")
             );
         }
-        Ok(ing)
+        Ok((p, ing))
     });
-    let ing = match result {
+    let (plan, ing) = match result {
         Ok(i) => i,
         Err(e) => {
             if a.json {
@@ -37,15 +37,25 @@ pub fn check(a: &CheckArgs) -> anyhow::Result<Status> {
             return Err(e);
         }
     };
-    let status = if ing.rejected.is_empty() {
+    let strict = ingest::strict_problems(&ing, &plan.spec);
+    let strict_on = plan.spec.strict;
+    let refused = strict_on && !strict.is_empty();
+    let status = if refused {
+        Status::Failed
+    } else if ing.rejected.is_empty() {
         Status::Success
     } else {
         Status::SuccessWithRejected
     };
     if a.json {
         let doc = json!({
-            "ok": true,
+            "ok": !refused,
             "files": ing.files,
+            "columns": ing.column_accounts(),
+            "ignored_columns": ing.ignored,
+            "site_columns": ing.site_columns,
+            "sites": { "rules": ing.site_rules, "labels": ing.site_labels },
+            "strict": { "enabled": strict_on, "problems": strict },
             "mapping": ing.mapping,
             "assumptions": ing.assumptions,
             "counts": ing.counts,
@@ -83,6 +93,11 @@ pub fn check(a: &CheckArgs) -> anyhow::Result<Status> {
                 println!("  {} row {} {}: {}", o.file, o.row, w.cell, w.message);
             }
         }
+    }
+    if refused {
+        println!("{}", summary::strict_refusal(&strict));
+        println!("a strict run would fail (exit status 2) and write nothing");
+        return Ok(status);
     }
     if ing.rejected.is_empty() {
         println!("ok: a run would compute every row");

@@ -60,6 +60,26 @@ pub struct InputSection {
     /// Canonical quantity → header text or column letter.
     #[serde(default)]
     pub columns: BTreeMap<String, String>,
+    /// Strict mode for scheduled runs: fail (exit 2, nothing written) when a column is not
+    /// read without being listed in `ignore_columns`, or a built-in default applies to a
+    /// quantity not listed in `defaults_allowed`.
+    #[serde(default)]
+    pub strict: bool,
+    /// Columns (header text or letter) not to read; strict mode accepts them being ignored.
+    #[serde(default)]
+    pub ignore_columns: Vec<String>,
+    /// Quantities that may take a built-in default in strict mode (`angstrom`, `ozone`,
+    /// `water`, `pressure`, `albedo`, `altitude`, `layer_top`, `utc_offset`, ...).
+    #[serde(default)]
+    pub defaults_allowed: Vec<String>,
+    /// Site name of rows without a site column (else the file name).
+    pub site_name: Option<String>,
+    /// The rows come from a moving platform (ship, buoy, aircraft).
+    #[serde(default)]
+    pub moving_platform: bool,
+    /// Largest distance of a row's coordinates from its site's in the site table before a
+    /// row warning [km] (default 2).
+    pub site_tolerance_km: Option<f64>,
     /// Quantities whose empty or fill-value cells may take the site, job or built-in value;
     /// default `["ozone", "water"]` ([`crate::ingest::DEFAULT_FALLBACK`]).
     pub fallback: Option<Vec<String>>,

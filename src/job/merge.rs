@@ -345,7 +345,15 @@ fn join(paths: &[PathBuf], bundles: &[Bundle]) -> anyhow::Result<Merged> {
 
     let mut mapping = Vec::new();
     let mut file_warnings = Vec::new();
+    let (mut ignored, mut site_columns, mut site_rules) = (Vec::new(), Vec::new(), Vec::new());
+    let mut site_labels = BTreeMap::new();
     for b in bundles {
+        push_new(&mut ignored, &b.ignored);
+        push_new(&mut site_columns, &b.site_columns);
+        push_new(&mut site_rules, &b.site_rules);
+        for (k, v) in &b.site_labels {
+            site_labels.entry(k.clone()).or_insert_with(|| v.clone());
+        }
         for m in &b.mapping {
             if !mapping.contains(m) {
                 mapping.push(m.clone());
@@ -431,6 +439,10 @@ fn join(paths: &[PathBuf], bundles: &[Bundle]) -> anyhow::Result<Merged> {
         files,
         counts,
         other_sites: 0,
+        ignored,
+        site_columns,
+        site_rules,
+        site_labels,
     };
     Ok(Merged {
         results: rows.iter().map(|(_, r)| r.result).collect(),
@@ -521,4 +533,13 @@ fn notes(
         parts.join("; ")
     ));
     v
+}
+
+/// Append the items of `new` that `list` does not hold yet, in order.
+fn push_new<T: Clone + PartialEq>(list: &mut Vec<T>, new: &[T]) {
+    for x in new {
+        if !list.contains(x) {
+            list.push(x.clone());
+        }
+    }
 }

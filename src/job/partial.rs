@@ -8,12 +8,14 @@
 //! reproduce the single run's report exactly ([`crate::physics::serde_float`]). See
 //! DEVELOPERS.md for the fields.
 
+use std::collections::BTreeMap;
 use std::path::Path;
 
 use chrono::{DateTime, Utc};
 
 use crate::ingest::{
-    Assumption, Counts, InputFile, MappedColumn, Period, Rejection, RowOrigin, RowWarning,
+    Assumption, Counts, IgnoredColumn, InputFile, MappedColumn, Period, Rejection, RowOrigin,
+    RowWarning,
 };
 use crate::physics::{Observation, ObservationResult, Settings};
 
@@ -86,6 +88,18 @@ pub struct Bundle {
     pub counts: Counts,
     /// Rows left out by the site filter (included in `counts.outside_period`).
     pub outside_site: usize,
+    /// Header columns not read, with the reason (absent in older bundles).
+    #[serde(default)]
+    pub ignored: Vec<IgnoredColumn>,
+    /// Site-sheet columns and how they were read.
+    #[serde(default)]
+    pub site_columns: Vec<MappedColumn>,
+    /// How the sites of each sheet were found.
+    #[serde(default)]
+    pub site_rules: Vec<String>,
+    /// Site key → report label (`Harlsby Flats (HRF)`).
+    #[serde(default)]
+    pub site_labels: BTreeMap<String, String>,
     /// Lower-case hex SHA-256 of the bundle's bytes before this field, which the writer
     /// appends last ([`to_bytes`]); checked by [`read_checked`] so that edited results are
     /// noticed. Never serialised by serde.

@@ -68,6 +68,7 @@ pub fn build(select: &SelectArgs, ov: &Overrides) -> anyhow::Result<Plan> {
         from_workbook(&select.input)
     };
     plan.today = today;
+    plan.spec.strict |= select.strict;
     plan.spec.period = period.clone();
     plan.period = period;
     if let Some(t) = &ov.template {
@@ -160,6 +161,12 @@ fn from_job(job: LoadedJob) -> anyhow::Result<Plan> {
             .fallback_checked()
             .map_err(|m| anyhow::anyhow!("{where_}: {m}"))?,
         defaults_set: super::config::atmosphere_keys(&job.text),
+        strict: f.input.strict,
+        ignore_columns: f.input.ignore_columns.clone(),
+        defaults_allowed: f.input.defaults_allowed.clone(),
+        site_name: f.input.site_name.clone(),
+        moving_platform: f.input.moving_platform,
+        site_tolerance_km: f.input.site_tolerance_km,
     };
     let template = if f.report.template.ends_with(".toml") || f.report.template.contains('/') {
         dir.join(&f.report.template).to_string_lossy().into_owned()

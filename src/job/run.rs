@@ -85,6 +85,10 @@ fn run_inner(a: &RunArgs, log: &Log) -> anyhow::Result<Status> {
             log.warn(&l);
         }
     }
+    let strict = ingest::strict_problems(&ing, &plan.spec);
+    if plan.spec.strict && !strict.is_empty() {
+        bail!("{}", summary::strict_refusal(&strict));
+    }
     if ing.counts.read == 0 {
         bail!(
             "{}: no data rows found under the header; nothing to compute",
@@ -101,10 +105,16 @@ fn run_inner(a: &RunArgs, log: &Log) -> anyhow::Result<Status> {
     // File-name forms of the sites, from every site read (before a site filter), so that
     // partitions of one reading agree and no two sites share an output.
     let site_names = site_file_names(&ing.sites).map_err(anyhow::Error::msg)?;
-    let outside_site = if a.sites.is_empty() {
+    // A site is asked for by its key (code) or by its full name or label; the key is used.
+    let asked_sites: Vec<String> = a
+        .sites
+        .iter()
+        .map(|s| summary::site_key_for(&ing, s).unwrap_or(s).to_string())
+        .collect();
+    let outside_site = if asked_sites.is_empty() {
         0
     } else {
-        filter_sites(&mut ing, &a.sites, log)?
+        filter_sites(&mut ing, &asked_sites, log)?
     };
 
     if plan.side_output == Some(SideFormat::Netcdf) && ing.observations.is_empty() {
@@ -129,8 +139,13 @@ fn run_inner(a: &RunArgs, log: &Log) -> anyhow::Result<Status> {
         date: plan.today.format("%Y-%m-%d").to_string(),
     };
     let file_form = |s: &String| site_names.get(s).cloned().unwrap_or_else(|| token_value(s));
-    let site_label =
-        (!a.sites.is_empty()).then(|| a.sites.iter().map(file_form).collect::<Vec<_>>().join("+"));
+    let site_label = (!asked_sites.is_empty()).then(|| {
+        asked_sites
+            .iter()
+            .map(file_form)
+            .collect::<Vec<_>>()
+            .join("+")
+    });
     let pattern = output_pattern(&plan.output_pattern, site_label.is_some());
     // One report per site only when the output name asks for it.
     let per_site = plan.output_pattern.contains("{site}");
@@ -233,7 +248,7 @@ fn run_inner(a: &RunArgs, log: &Log) -> anyhow::Result<Status> {
             period: plan.period.as_ref().map(|p| p.label.clone()),
             created_utc: created,
             notes: {
-                let mut n = notes(&plan, site.as_deref(), &a.sites);
+                let mut n = notes(&plan, site.as_deref(), &asked_sites);
                 if sub_res.len() > LARGE_REPORT_ROWS {
                     n.push(format!(
                         "More than {LARGE_REPORT_ROWS} results: the workbook is compressed at zip level {LARGE_REPORT_ZIP_LEVEL} for speed (about a quarter larger than at the default level 6)."
@@ -284,7 +299,7 @@ fn run_inner(a: &RunArgs, log: &Log) -> anyhow::Result<Status> {
     }
     if let Some(path) = &bundle_path {
         let t = Instant::now();
-        let bundle = bundle(&plan, &ing, &results, &a.sites, outside_site);
+        let bundle = bundle(&plan, &ing, &results, &asked_sites, outside_site);
         let bytes = partial::to_bytes(path, &bundle)?;
         let tmp = staged.add(path).with_context(|| staging_error(path))?;
         std::fs::write(&tmp, bytes)
@@ -414,7 +429,11 @@ fn filter_sites(ing: &mut Ingested, sites: &[String], log: &Log) -> anyhow::Resu
     let mut known: Vec<&str> = ing.sites.iter().map(String::as_str).collect();
     known.sort_unstable();
     known.dedup();
-    let known_text = known.join(", ");
+    let known_text = known
+        .iter()
+        .map(|s| ing.site_label(s))
+        .collect::<Vec<_>>()
+        .join(", ");
     let missing: Vec<&str> = sites
         .iter()
         .map(String::as_str)
@@ -484,6 +503,10 @@ fn bundle(
         assumptions: ing.assumptions.clone(),
         counts: ing.counts,
         outside_site,
+        ignored: ing.ignored.clone(),
+        site_columns: ing.site_columns.clone(),
+        site_rules: ing.site_rules.clone(),
+        site_labels: ing.site_labels.clone(),
         content_sha256: None,
     }
 }

@@ -7,7 +7,7 @@ use rust_xlsxwriter::{Workbook, XlsxError};
 use super::ReportInput;
 use super::template::{SheetSpec, Template};
 use super::xlsx::{SIGNIFICANT_DIGITS, Styles, clip};
-use crate::ingest::ValueSource;
+use crate::ingest::{MappedColumn, ValueSource};
 use crate::physics::references::METHODS;
 use crate::physics::{BandSet, Closure, Method, Settings};
 
@@ -77,6 +77,50 @@ pub fn statistics_notes() -> Vec<String> {
     ]
 }
 
+/// Quantity of a read column as the About sheet shows it: `aod (500 nm)`,
+/// `angstrom (440–870 nm pair)`.
+fn quantity_label(m: &MappedColumn) -> String {
+    match (m.wavelength_nm, m.wavelength_pair_nm) {
+        (_, Some([a, b])) => format!("{} ({a}–{b} nm pair)", m.quantity),
+        (Some(w), None) => format!("{} ({w} nm)", m.quantity),
+        (None, None) => m.quantity.clone(),
+    }
+}
+
+fn write_mapped(
+    ws: &mut rust_xlsxwriter::Worksheet,
+    r: u32,
+    m: &MappedColumn,
+) -> Result<(), XlsxError> {
+    let q = quantity_label(m);
+    for (c, s) in [&q, &m.header, &m.file, &m.sheet, &m.letter, &m.unit, &m.how]
+        .into_iter()
+        .enumerate()
+    {
+        if !s.is_empty() {
+            ws.write_string(r, c as u16, clip(s).as_ref())?;
+        }
+    }
+    Ok(())
+}
+
+/// What the Ångström exponent's wavelength pair means for the AOD of the bands.
+fn angstrom_pair_note(m: &MappedColumn, settings: &Settings) -> String {
+    let [a, b] = m.wavelength_pair_nm.unwrap_or([f64::NAN, f64::NAN]);
+    let head = format!(
+        "column {} \"{}\" ({}): Ångström exponent measured over {a}–{b} nm.",
+        m.letter, m.header, m.file
+    );
+    match settings.band_set {
+        BandSet::AstmG173 => format!(
+            "{head} The bands span 280–4000 nm, so for every row the band AOD below {a} nm and above {b} nm is extrapolated in the Ångström law; rows whose AOD wavelength lies outside the pair carry a warning on the Results sheet."
+        ),
+        BandSet::Single => format!(
+            "{head} One band at the AOD wavelength: rows whose AOD wavelength lies outside the pair carry a warning on the Results sheet (extrapolated to 550 nm in the Ångström law)."
+        ),
+    }
+}
+
 struct Cursor {
     r: u32,
 }
@@ -143,7 +187,7 @@ pub fn write_about(
 
     // The job in one paragraph.
     section(ws, &mut cur, "The job")?;
-    let mut sites: Vec<&str> = ing.sites.iter().map(String::as_str).collect();
+    let mut sites: Vec<&str> = ing.sites.iter().map(|s| ing.site_label(s)).collect();
     sites.sort_unstable();
     sites.dedup();
     let times = input.ingested.observations.iter().map(|o| o.time_utc);
@@ -330,13 +374,8 @@ pub fn write_about(
         }
     }
 
-    // Column mapping.
+    // Column accounting: every header column, read or not.
     section(ws, &mut cur, "How the input columns were read")?;
-    let mapping = if input.mapping.is_empty() {
-        &ing.mapping
-    } else {
-        input.mapping
-    };
     table_head(
         ws,
         &mut cur,
@@ -344,12 +383,34 @@ pub fn write_about(
             "Quantity", "Header", "File", "Sheet", "Column", "Unit", "How",
         ],
     )?;
-    for m in mapping {
-        let q = match m.wavelength_nm {
-            Some(w) => format!("{} ({w} nm)", m.quantity),
-            None => m.quantity.clone(),
+    let merged_mapping = !input.mapping.is_empty() && input.mapping != ing.mapping.as_slice();
+    for m in input.mapping.iter().filter(|_| merged_mapping) {
+        write_mapped(ws, cur.r, m)?;
+        cur.r += 1;
+    }
+    for a in ing.column_accounts() {
+        if merged_mapping && a.status == "read" && a.role == "data" {
+            continue;
+        }
+        let m = ing
+            .mapping
+            .iter()
+            .chain(&ing.site_columns)
+            .find(|m| m.file == a.file && m.sheet == a.sheet && m.letter == a.letter);
+        let (q, unit, how) = match (a.status, m) {
+            ("read", Some(m)) => (quantity_label(m), m.unit.clone(), m.how.clone()),
+            _ => (
+                "(not read)".to_string(),
+                String::new(),
+                format!("ignored: {}", a.detail),
+            ),
         };
-        for (c, s) in [&q, &m.header, &m.file, &m.sheet, &m.letter, &m.unit, &m.how]
+        let header = if a.header.is_empty() {
+            "(no header)".to_string()
+        } else {
+            a.header.clone()
+        };
+        for (c, s) in [&q, &header, &a.file, &a.sheet, &a.letter, &unit, &how]
             .into_iter()
             .enumerate()
         {
@@ -358,6 +419,34 @@ pub fn write_about(
             }
         }
         cur.r += 1;
+    }
+    for m in ing
+        .mapping
+        .iter()
+        .filter(|m| m.wavelength_pair_nm.is_some())
+    {
+        pair(
+            ws,
+            &mut cur,
+            "Ångström wavelength pair",
+            &angstrom_pair_note(m, settings),
+        )?;
+    }
+
+    // Sites.
+    if !ing.site_rules.is_empty() || !ing.site_labels.is_empty() {
+        section(ws, &mut cur, "Sites")?;
+        for r in &ing.site_rules {
+            pair(ws, &mut cur, "How sites were found", r)?;
+        }
+        for (key, label) in &ing.site_labels {
+            pair(
+                ws,
+                &mut cur,
+                key,
+                &format!("shown as \"{label}\" (the key stays {key})"),
+            )?;
+        }
     }
 
     // Statistics.

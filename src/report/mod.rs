@@ -198,7 +198,8 @@ pub fn build_rows<'a>(input: &'a ReportInput<'a>) -> Result<Vec<Row<'a>>, Report
     Ok((0..n)
         .map(|i| Row {
             origin: &ing.origins[i],
-            site: ing.sites[i].as_str(),
+            // The report shows `Full Name (KEY)` where the site table gives a full name.
+            site: ing.site_label(&ing.sites[i]),
             obs: &ing.observations[i],
             res: &input.results[i],
             warnings: ing.row_warnings.get(i).map(Vec::as_slice).unwrap_or(&[]),

@@ -196,6 +196,7 @@ pub fn sample(n: usize) -> (Ingested, Vec<ObservationResult>) {
         letter: "F".into(),
         unit: "".into(),
         how: "detected".into(),
+        wavelength_pair_nm: None,
     }];
     ing.assumptions = vec![Assumption {
         quantity: "ozone".into(),
