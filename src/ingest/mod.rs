@@ -54,11 +54,11 @@ use std::path::Path;
 
 use polars::prelude::*;
 
+pub use accounting::{ColumnAccount, strict_problems};
 pub use read::{NO_TIME_OF_DAY, blank_instantaneous, lacks_time_of_day};
 pub use resolve::{fit_angstrom, interpolate_ln_wavelength};
-pub use validate::check_job_value;
-pub use accounting::{ColumnAccount, strict_problems};
 pub use sites::{SITE_TOLERANCE_KM, distance_km};
+pub use validate::check_job_value;
 
 /// Move the rows whose radiative transfer gave no finite result (a solar position that
 /// cannot be computed, a non-finite flux) from the computed rows to the rejected ones, so
