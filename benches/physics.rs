@@ -6,6 +6,7 @@
 //! streams (two-stream; discrete ordinates with 4, 6, 8, 16 streams).
 
 use chrono::{TimeDelta, TimeZone, Utc};
+use hazebook::physics::discrete_ordinates::{ScatteringLayer, solve_column, solve_column_general};
 use hazebook::physics::forcing::{Context, compute_batch, compute_observation};
 use hazebook::physics::two_stream::{LayerOptics, ResponseBatch, solve_batch, solve_layer};
 use hazebook::physics::{
@@ -255,6 +256,62 @@ fn main() {
         println!(
             "    discrete ordinates, {streams:2} streams: {rate:10.1} obs/s per core ({:.0}× the two-stream cost)",
             two_stream / rate
+        );
+    }
+
+    // One column solve (a Rayleigh layer over an aerosol layer, varied optics and sun) on
+    // the fixed-size path that the driver uses up to 16 streams and on the general
+    // (nalgebra) path, to show which is faster at each N.
+    println!("  one two-layer column solve (homogeneous solutions included):");
+    let columns: Vec<([ScatteringLayer; 2], f64, f64)> = inputs
+        .iter()
+        .map(|(o, mu0)| {
+            (
+                [
+                    ScatteringLayer {
+                        tau: 0.1 * o.tau,
+                        ssa: 1.0,
+                        rayleigh_share: 1.0,
+                        aerosol_g: 0.0,
+                    },
+                    ScatteringLayer {
+                        tau: o.tau,
+                        ssa: o.ssa,
+                        rayleigh_share: 0.1,
+                        aerosol_g: o.g,
+                    },
+                ],
+                *mu0,
+                0.2 * o.ssa,
+            )
+        })
+        .collect();
+    for streams in [4, 6, 8, 16] {
+        let time = |general: bool| -> f64 {
+            let m = if streams <= 8 { 20_000 } else { 5_000 };
+            let mut best = f64::INFINITY;
+            let mut acc = 0.0;
+            for _ in 0..3 {
+                let t = Instant::now();
+                for i in 0..m {
+                    let (layers, mu0, albedo) = &columns[i & 1023];
+                    let f = if general {
+                        solve_column_general(black_box(layers), *mu0, *albedo, streams, true)
+                    } else {
+                        solve_column(black_box(layers), *mu0, *albedo, streams, true)
+                    };
+                    acc += f.toa_up;
+                }
+                best = best.min(t.elapsed().as_secs_f64() / m as f64);
+            }
+            black_box(acc);
+            best
+        };
+        let (fixed, general) = (time(false), time(true));
+        println!(
+            "    {streams:2} streams: fixed-size {:8.2} µs, general (nalgebra) {:8.2} µs",
+            fixed * 1e6,
+            general * 1e6
         );
     }
 }

@@ -65,10 +65,10 @@ use std::f64::consts::PI;
 /// Largest number of streams accepted.
 pub const MAX_STREAMS: usize = 64;
 /// Relative half-width of the interpolation window around the resonance k μ0 = 1.
-const RESONANCE_WINDOW: f64 = 1e-5;
+pub(super) const RESONANCE_WINDOW: f64 = 1e-5;
 /// Layers with 1 − ω′ below this are solved as conservative (the absorption neglected is
 /// below 10⁻⁹ of the layer's extinction) [unitless].
-const CONSERVATIVE_LIMIT: f64 = 1e-9;
+pub(super) const CONSERVATIVE_LIMIT: f64 = 1e-9;
 /// Largest |g| accepted (as in [`super::two_stream`]) [unitless].
 const G_LIMIT: f64 = 0.999_999;
 
@@ -154,7 +154,7 @@ impl Quadrature {
 }
 
 /// Legendre polynomial P_l(x) by the three-term recurrence (Abramowitz & Stegun 1964, 8.5.3).
-fn legendre_p(l: usize, x: f64) -> f64 {
+pub(super) fn legendre_p(l: usize, x: f64) -> f64 {
     let (mut p0, mut p1) = (1.0, x);
     if l == 0 {
         return 1.0;
@@ -612,7 +612,37 @@ fn solve_at(
 /// - `streams`: N, even, 2–[`MAX_STREAMS`]; other values are rounded up to the next even
 ///   number and clamped
 /// - `delta_m`: apply the delta-M scaling
+///
+/// Up to [`super::discrete_ordinates_fixed::MAX_FIXED_STREAMS`] streams the solution is
+/// computed on fixed-size arrays ([`super::discrete_ordinates_fixed`]), above on the general
+/// path ([`solve_column_general`]).
 pub fn solve_column(
+    layers: &[ScatteringLayer],
+    mu0: f64,
+    albedo: f64,
+    streams: usize,
+    delta_m: bool,
+) -> ColumnFluxes {
+    use super::discrete_ordinates_fixed::solve_column_fixed;
+    let streams = (streams + streams % 2).clamp(2, MAX_STREAMS);
+    let (l, m, a, d) = (layers, mu0, albedo, delta_m);
+    match streams {
+        2 => solve_column_fixed::<1, 2>(l, m, a, d),
+        4 => solve_column_fixed::<2, 4>(l, m, a, d),
+        6 => solve_column_fixed::<3, 6>(l, m, a, d),
+        8 => solve_column_fixed::<4, 8>(l, m, a, d),
+        10 => solve_column_fixed::<5, 10>(l, m, a, d),
+        12 => solve_column_fixed::<6, 12>(l, m, a, d),
+        14 => solve_column_fixed::<7, 14>(l, m, a, d),
+        16 => solve_column_fixed::<8, 16>(l, m, a, d),
+        _ => solve_column_general(l, m, a, streams, d),
+    }
+}
+
+/// [`solve_column`] on the general path (nalgebra, any N), which [`solve_column`] takes
+/// above [`super::discrete_ordinates_fixed::MAX_FIXED_STREAMS`] streams (the fixed-size
+/// path below); the same solution to rounding.
+pub fn solve_column_general(
     layers: &[ScatteringLayer],
     mu0: f64,
     albedo: f64,

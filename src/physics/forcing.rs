@@ -62,8 +62,10 @@
 //! pressure thickness of the aerosol layer.
 
 use super::aerosol::{aerosol_optics, aod_at_wavelength};
+use super::column::ColumnFluxes;
 use super::column::{ColumnBatch, add_slices};
 use super::discrete_ordinates::{LayerModes, Quadrature, ScatteringLayer, solve_modes_surface};
+use super::discrete_ordinates_fixed::{FixedModes, FixedQuadrature, FixedWork, solve_fixed};
 use super::diurnal::day_geometry;
 use super::diurnal::spencer_distance_factor;
 use super::gases::{GasDepths, GasPaths, ozone_airmass_bird_riordan1986};
@@ -687,6 +689,71 @@ fn mix_scattering(tau_rayleigh: f64, tau_gas: f64, aerosol: LayerOptics) -> Scat
     }
 }
 
+/// The discrete-ordinate solver of one evaluation: the sun-independent solutions of a
+/// layer and the column solve, on the fixed-size path
+/// ([`super::discrete_ordinates_fixed`], N ≤ 16) or the general one.
+trait OrdinateSolver {
+    type Modes;
+    /// Delta-M scaled homogeneous solutions of `layer`.
+    fn modes(&self, layer: &ScatteringLayer) -> Self::Modes;
+    /// Fluxes of `layers` (top first) over the surface, fractions of the incident flux;
+    /// `column` (0 or 1) names the column, whose work arrays are kept for its next solve.
+    fn solve(
+        &mut self,
+        column: usize,
+        layers: &[&Self::Modes],
+        mu0: f64,
+        beam: f64,
+        diffuse: f64,
+    ) -> ColumnFluxes;
+}
+
+/// [`OrdinateSolver`] on the general (nalgebra, any N) path.
+struct GeneralOrdinates(Quadrature);
+
+impl OrdinateSolver for GeneralOrdinates {
+    type Modes = LayerModes;
+    fn modes(&self, layer: &ScatteringLayer) -> LayerModes {
+        LayerModes::new(layer, &self.0, true)
+    }
+    fn solve(
+        &mut self,
+        _column: usize,
+        layers: &[&LayerModes],
+        mu0: f64,
+        beam: f64,
+        diffuse: f64,
+    ) -> ColumnFluxes {
+        solve_modes_surface(layers, &self.0, mu0, beam, diffuse)
+    }
+}
+
+/// [`OrdinateSolver`] on the fixed-size path of F = 2H streams.
+#[derive(Default)]
+struct FixedOrdinates<const H: usize, const F: usize> {
+    quad: FixedQuadrature<H, F>,
+    /// Work arrays of the aerosol-free and the aerosol column.
+    work: [FixedWork; 2],
+}
+
+impl<const H: usize, const F: usize> OrdinateSolver for FixedOrdinates<H, F> {
+    type Modes = FixedModes<H, F>;
+    fn modes(&self, layer: &ScatteringLayer) -> FixedModes<H, F> {
+        FixedModes::new(layer, &self.quad, true)
+    }
+    fn solve(
+        &mut self,
+        column: usize,
+        layers: &[&FixedModes<H, F>],
+        mu0: f64,
+        beam: f64,
+        diffuse: f64,
+    ) -> ColumnFluxes {
+        let work = &mut self.work[column.min(1)];
+        solve_fixed(layers, &self.quad, mu0, beam, diffuse, work)
+    }
+}
+
 /// [`evaluate`] with the discrete-ordinate solver ([`super::discrete_ordinates`]) of
 /// [`Settings::streams`] streams and delta-M: the same layers, gas paths and surface (the
 /// beam reflected with the beam albedo, diffuse light with the diffuse albedo, both
@@ -697,55 +764,125 @@ fn evaluate_discrete_ordinates(
     suns: &[(f64, f64)],
     w: &mut Scratch,
 ) -> (Fluxes, Fluxes) {
+    fn fixed<const H: usize, const F: usize>() -> FixedOrdinates<H, F> {
+        FixedOrdinates::default()
+    }
+    let (p, s, w) = (prep, settings, w);
+    match settings.streams {
+        2 => evaluate_ordinates(p, s, suns, w, fixed::<1, 2>()),
+        4 => evaluate_ordinates(p, s, suns, w, fixed::<2, 4>()),
+        6 => evaluate_ordinates(p, s, suns, w, fixed::<3, 6>()),
+        8 => evaluate_ordinates(p, s, suns, w, fixed::<4, 8>()),
+        10 => evaluate_ordinates(p, s, suns, w, fixed::<5, 10>()),
+        12 => evaluate_ordinates(p, s, suns, w, fixed::<6, 12>()),
+        14 => evaluate_ordinates(p, s, suns, w, fixed::<7, 14>()),
+        16 => evaluate_ordinates(p, s, suns, w, fixed::<8, 16>()),
+        n => match Quadrature::new(n) {
+            Some(quad) => evaluate_ordinates(p, s, suns, w, GeneralOrdinates(quad)),
+            None => {
+                let nan = Fluxes {
+                    toa_down: f64::NAN,
+                    toa_up: f64::NAN,
+                    toa_net: f64::NAN,
+                    sfc_down_direct: f64::NAN,
+                    sfc_down_diffuse: f64::NAN,
+                    sfc_up: f64::NAN,
+                    sfc_net: f64::NAN,
+                };
+                (nan, nan)
+            }
+        },
+    }
+}
+
+/// The modes of `layer` from `slot` if it holds the same layer, else computed into it.
+fn cached_modes<'a, S: OrdinateSolver>(
+    solver: &S,
+    slot: &'a mut Option<(ScatteringLayer, S::Modes)>,
+    layer: ScatteringLayer,
+) -> &'a S::Modes {
+    if !matches!(slot, Some((l, _)) if *l == layer) {
+        *slot = Some((layer, solver.modes(&layer)));
+    }
+    &slot.as_ref().expect("just set").1
+}
+
+/// [`evaluate_discrete_ordinates`] with one solver.
+///
+/// Band by band, and within a band sun by sun: a layer whose optics do not change with the
+/// sun (no gas absorbs in it in that band) keeps its homogeneous solutions from one sun
+/// position to the next; only the particular solution and the boundary-value problem are
+/// solved again.
+fn evaluate_ordinates<S: OrdinateSolver>(
+    prep: &Prepared,
+    settings: &Settings,
+    suns: &[(f64, f64)],
+    w: &mut Scratch,
+    mut solver: S,
+) -> (Fluxes, Fluxes) {
     let mut clean = Sums::default();
     let mut aerosol = Sums::default();
-    let Some(quad) = Quadrature::new(settings.streams) else {
-        let nan = Fluxes {
-            toa_down: f64::NAN,
-            toa_up: f64::NAN,
-            toa_net: f64::NAN,
-            sfc_down_direct: f64::NAN,
-            sfc_down_diffuse: f64::NAN,
-            sfc_up: f64::NAN,
-            sfc_net: f64::NAN,
-        };
-        return (nan, nan);
-    };
     let s = prep.split;
+    let n = prep.bands.len();
+    // Per lit sun position: (μ0, weight, slant factor, beam albedo), and the vertical gas
+    // depths of all bands (ozone, water vapour, mixed; n each).
+    let mut lit: Vec<(f64, f64, f64, f64)> = Vec::with_capacity(suns.len());
+    let mut gas_depths: Vec<f64> = Vec::with_capacity(3 * n * suns.len());
     for &(mu0, weight) in suns {
         if mu0.is_nan() || mu0 <= 0.0 {
             continue;
         }
         let (slant_scale, albedo_direct) = sun_gas_depths(prep, settings, mu0, &mut w.gas);
-        for (i, band) in prep.bands.iter().enumerate() {
+        lit.push((mu0, weight, slant_scale, albedo_direct));
+        for g in &w.gas {
+            gas_depths.extend_from_slice(&g[..n]);
+        }
+    }
+    for (i, band) in prep.bands.iter().enumerate() {
+        let mut slots: [Option<(ScatteringLayer, S::Modes)>; 4] = [None, None, None, None];
+        for (k, &(mu0, weight, slant_scale, albedo_direct)) in lit.iter().enumerate() {
+            let depth = |g: usize| gas_depths[(3 * k + g) * n + i] * slant_scale;
             let gas = GasDepths {
-                ozone: w.gas[0][i] * slant_scale,
-                water: w.gas[1][i] * slant_scale,
-                mixed: w.gas[2][i] * slant_scale,
+                ozone: depth(0),
+                water: depth(1),
+                mixed: depth(2),
             };
             let tr = band.tau_rayleigh;
             let none = LayerOptics::default();
             let gas_aerosol_layer = gas.water * s.water_aerosol + gas.mixed * s.aerosol;
-            let upper =
-                mix_scattering(tr * s.rayleigh_upper, gas.ozone + gas.mixed * s.upper, none);
-            let with = mix_scattering(tr * s.rayleigh_aerosol, gas_aerosol_layer, band.aerosol);
-            let without = mix_scattering(tr * s.rayleigh_aerosol, gas_aerosol_layer, none);
-            let modes = |l: &ScatteringLayer| LayerModes::new(l, &quad, true);
-            let (upper, with, without) = (modes(&upper), modes(&with), modes(&without));
-            let lower = s.elevated.then(|| {
-                let gas_lower = gas.water * s.water_lower + gas.mixed * s.lower;
-                modes(&mix_scattering(tr * s.rayleigh_lower, gas_lower, none))
-            });
+            let [upper_slot, with_slot, without_slot, lower_slot] = &mut slots;
+            let upper = cached_modes(
+                &solver,
+                upper_slot,
+                mix_scattering(tr * s.rayleigh_upper, gas.ozone + gas.mixed * s.upper, none),
+            );
+            let with = cached_modes(
+                &solver,
+                with_slot,
+                mix_scattering(tr * s.rayleigh_aerosol, gas_aerosol_layer, band.aerosol),
+            );
+            let without = cached_modes(
+                &solver,
+                without_slot,
+                mix_scattering(tr * s.rayleigh_aerosol, gas_aerosol_layer, none),
+            );
             let (ad, af) = (albedo_direct, prep.albedo_diffuse);
-            let (c, a) = match &lower {
-                Some(lower) => (
-                    solve_modes_surface(&[&upper, &without, lower], &quad, mu0, ad, af),
-                    solve_modes_surface(&[&upper, &with, lower], &quad, mu0, ad, af),
-                ),
-                None => (
-                    solve_modes_surface(&[&upper, &without], &quad, mu0, ad, af),
-                    solve_modes_surface(&[&upper, &with], &quad, mu0, ad, af),
-                ),
+            let (c, a) = if s.elevated {
+                let gas_lower = gas.water * s.water_lower + gas.mixed * s.lower;
+                let lower = cached_modes(
+                    &solver,
+                    lower_slot,
+                    mix_scattering(tr * s.rayleigh_lower, gas_lower, none),
+                );
+                (
+                    solver.solve(0, &[upper, without, lower], mu0, ad, af),
+                    solver.solve(1, &[upper, with, lower], mu0, ad, af),
+                )
+            } else {
+                (
+                    solver.solve(0, &[upper, without], mu0, ad, af),
+                    solver.solve(1, &[upper, with], mu0, ad, af),
+                )
             };
             let incident = band.irradiance * mu0 * weight;
             clean.add(

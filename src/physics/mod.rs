@@ -11,6 +11,7 @@
 pub mod aerosol;
 pub mod column;
 pub mod discrete_ordinates;
+pub mod discrete_ordinates_fixed;
 pub mod diurnal;
 pub mod forcing;
 pub mod gases;
