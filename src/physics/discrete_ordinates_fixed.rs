@@ -24,6 +24,9 @@
 //! 2. Golub, G. H. & Van Loan, C. F. (2013), Matrix Computations, 4th ed., Johns Hopkins.
 //! 3. Stamnes, K. & Swanson, R. A. (1981), J. Atmos. Sci. 38, 387–399.
 
+// Matrix code: the index loops follow the formulas' subscripts.
+#![allow(clippy::needless_range_loop)]
+
 use super::column::{ColumnFluxes, MAX_LAYERS};
 use super::discrete_ordinates::{
     CONSERVATIVE_LIMIT, RESONANCE_WINDOW, ScatteringLayer, legendre_p,
