@@ -28,10 +28,12 @@ fn sheets_come_in_template_order() {
         names,
         [
             "About",
+            "Summary for papers",
             "Results",
             "Site x month",
             "Site",
             "Site x season",
+            "Site x day",
             "Efficiency",
             "Charts",
             "Charts data",
@@ -215,9 +217,26 @@ fn efficiency_slopes_equal_an_independent_ols() {
             continue;
         }
         let site = text(&r, row, 0);
-        let p: Vec<(f64, f64)> = (0..n)
-            .filter(|&i| ing.sites[i] == site)
-            .map(|i| (res[i].aod_550, res[i].daily.dre_sfc))
+        // 24-hour quantities are fitted over site-days: day means of AOD(550) and ΔF, the day
+        // being the local mean-solar date (UTC + longitude/15 h).
+        let mut days: std::collections::BTreeMap<chrono::NaiveDate, Vec<(f64, f64)>> =
+            Default::default();
+        for i in (0..n).filter(|&i| ing.sites[i] == site) {
+            let o = &ing.observations[i];
+            let shift = chrono::Duration::seconds((o.longitude_deg * 240.0).round() as i64);
+            days.entry((o.time_utc + shift).date_naive())
+                .or_default()
+                .push((res[i].aod_550, res[i].daily.dre_sfc));
+        }
+        let p: Vec<(f64, f64)> = days
+            .values()
+            .map(|v| {
+                let k = v.len() as f64;
+                (
+                    v.iter().map(|q| q.0).sum::<f64>() / k,
+                    v.iter().map(|q| q.1).sum::<f64>() / k,
+                )
+            })
             .collect();
         let k = p.len() as f64;
         let mx = p.iter().map(|q| q.0).sum::<f64>() / k;

@@ -251,6 +251,7 @@ mod tests {
                 sun_below_horizon: true,
                 ..Flags::default()
             },
+            uncertainty: None,
         };
         let s = serde_json::to_string(&r).unwrap();
         let back: ObservationResult = serde_json::from_str(&s).unwrap();

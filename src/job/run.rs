@@ -17,6 +17,7 @@ use crate::cli::{RunArgs, Status};
 use crate::ingest::{self, Ingested};
 use crate::physics::ObservationResult;
 use crate::physics::forcing::{Context, compute_batch_with_context};
+use crate::physics::uncertainty::propagate_batch;
 use crate::report::{self, About, ReportInput, SideFormat, WriteOptions, template};
 
 /// Above this many results the workbook is compressed faster (zip level 1): most of a large
@@ -41,7 +42,28 @@ fn run_inner(a: &RunArgs, log: &Log) -> anyhow::Result<Status> {
         side_output: a.outputs.side_output.map(Into::into),
     };
     let plan = plan::build(&a.select, &ov)?;
-    let tpl = template::load(&plan.template)?;
+    let mut tpl = template::load(&plan.template)?;
+    let uncertainty = plan
+        .job
+        .as_ref()
+        .map(|j| j.file.uncertainty.clone())
+        .unwrap_or_default();
+    let (declared, uncertainty_notes) = uncertainty
+        .resolve(tpl.propagate_uncertainty)
+        .map_err(|m| anyhow::anyhow!("{}: {m}", inputs_text_job(&plan)))?;
+    if let Some(n) = plan
+        .job
+        .as_ref()
+        .and_then(|j| j.file.report.min_observations_per_day)
+    {
+        if n == 0 {
+            bail!(
+                "{}: [report] min_observations_per_day: expected a whole number of at least 1, found 0",
+                inputs_text_job(&plan)
+            );
+        }
+        tpl.min_observations_per_day = n;
+    }
     log.info(&format!(
         "hazebook {} — job {}{}",
         env!("CARGO_PKG_VERSION"),
@@ -86,6 +108,8 @@ fn run_inner(a: &RunArgs, log: &Log) -> anyhow::Result<Status> {
             ing.counts.read
         );
     }
+    // Tallied over the rows of the period before the site filter, like ingestion's.
+    one_wavelength_assumptions(&mut ing);
     let outside_site = if a.sites.is_empty() {
         0
     } else {
@@ -93,7 +117,17 @@ fn run_inner(a: &RunArgs, log: &Log) -> anyhow::Result<Status> {
     };
 
     let t = Instant::now();
-    let results = compute(&ing, &plan, log);
+    let mut results = compute(&ing, &plan, log);
+    for (o, r) in ing.observations.iter().zip(results.iter_mut()) {
+        crate::physics::spectral_flags::refine(o, &plan.settings, &mut r.flags);
+    }
+    if !declared.is_empty() {
+        let ctx = Context::new(&plan.settings);
+        let u = propagate_batch(&ing.observations, &results, &plan.settings, &ctx, &declared);
+        for (r, u) in results.iter_mut().zip(u) {
+            r.uncertainty = Some(u);
+        }
+    }
     let t_physics = t.elapsed().as_secs_f64();
 
     std::fs::create_dir_all(&plan.out_dir).with_context(|| {
@@ -167,6 +201,7 @@ fn run_inner(a: &RunArgs, log: &Log) -> anyhow::Result<Status> {
             created_utc: created,
             notes: {
                 let mut n = notes(&plan, site.as_deref(), &a.sites);
+                n.extend(uncertainty_notes.iter().cloned());
                 if sub_res.len() > LARGE_REPORT_ROWS {
                     n.push(format!(
                         "More than {LARGE_REPORT_ROWS} results: the workbook is compressed at zip level {LARGE_REPORT_ZIP_LEVEL} for speed (about a quarter larger than at the default level 6)."
@@ -260,6 +295,38 @@ fn run_inner(a: &RunArgs, log: &Log) -> anyhow::Result<Status> {
 }
 
 /// Compute every observation on all cores, with a progress bar on a terminal.
+/// Rows whose SSA or g was given at one wavelength (held over the whole spectrum; flagged by
+/// [`crate::physics::spectral_flags::refine`]), counted among the assumptions.
+fn one_wavelength_assumptions(ing: &mut Ingested) {
+    let ssa = ing.observations.iter().filter(|o| o.ssa.len() == 1).count();
+    let g = ing
+        .observations
+        .iter()
+        .filter(|o| o.asymmetry.len() == 1)
+        .count();
+    for (quantity, rows) in [
+        ("ssa spectral dependence", ssa),
+        ("asymmetry spectral dependence", g),
+    ] {
+        if rows > 0 {
+            ing.assumptions.push(ingest::Assumption {
+                quantity: quantity.into(),
+                value: "given at one wavelength, held constant over the whole spectrum".into(),
+                source: ingest::ValueSource::BuiltIn,
+                rows,
+            });
+        }
+    }
+}
+
+/// The job file's path for messages (or the inputs without one).
+fn inputs_text_job(plan: &Plan) -> String {
+    match &plan.job {
+        Some(j) => j.path.display().to_string(),
+        None => inputs_text(plan),
+    }
+}
+
 fn compute(ing: &Ingested, plan: &Plan, log: &Log) -> Vec<ObservationResult> {
     let ctx = Context::new(&plan.settings);
     let pb = log.progress(ing.observations.len() as u64, "physics");

@@ -763,6 +763,7 @@ fn compute_with(
         daily,
         daylight_hours,
         flags,
+        uncertainty: None,
     }
 }
 

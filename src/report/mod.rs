@@ -39,7 +39,10 @@ use crate::physics::{ObservationResult, Settings};
 
 pub mod about;
 pub mod charts;
+pub mod charts_daily;
+pub mod days;
 pub mod frame;
+pub mod quotable;
 pub mod stats;
 pub mod template;
 pub mod xlsx;
@@ -388,7 +391,7 @@ fn build_workbook(
                     name: template.name.clone(),
                     message: format!("sheet \"{}\": unknown column", spec.name),
                 })?;
-                let cols = frame::available(cols, settings);
+                let cols = frame::drop_empty_uncertainty(frame::available(cols, settings), rows);
                 xlsx::write_results(
                     &mut wb,
                     template,
@@ -456,6 +459,9 @@ fn build_workbook(
                 )
                 .map_err(xerr)?;
             }
+            SheetKind::Quotable => {
+                quotable::write_quotable(&mut wb, template, spec, &styles, input, rows)?;
+            }
             SheetKind::Rejected => {
                 xlsx::write_rejected(
                     &mut wb,
@@ -479,7 +485,10 @@ fn build_workbook(
 /// as Float64 (null where not finite), times as Datetime[ms] (UTC), text as String.
 pub fn results_frame(input: &ReportInput) -> Result<DataFrame, ReportError> {
     let rows = build_rows(input)?;
-    let cols = frame::available(frame::columns().iter().collect(), input.settings);
+    let cols = frame::drop_empty_uncertainty(
+        frame::available(frame::columns().iter().collect(), input.settings),
+        &rows,
+    );
     let polars_err = |e: PolarsError| ReportError::Input {
         message: format!("building the results table: {e}"),
     };
