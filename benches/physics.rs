@@ -2,12 +2,15 @@
 //!
 //! 10,000 varied observations with the default settings (ASTM G173 bands, Rayleigh and gases,
 //! 12 diurnal nodes, instantaneous and 24-hour mean), on one thread and on all cores (rayon),
-//! and the cost of one two-stream layer solve.
+//! the cost of one two-stream layer solve, and the throughput per solver and number of
+//! streams (two-stream; discrete ordinates with 4, 6, 8, 16 streams).
 
 use chrono::{TimeDelta, TimeZone, Utc};
 use hazebook::physics::forcing::{Context, compute_batch, compute_observation};
 use hazebook::physics::two_stream::{LayerOptics, ResponseBatch, solve_batch, solve_layer};
-use hazebook::physics::{AerosolLayer, Closure, Observation, Settings, SpectralValue, Surface};
+use hazebook::physics::{
+    AerosolLayer, Closure, Method, Observation, Settings, SpectralValue, Surface,
+};
 use std::hint::black_box;
 use std::time::Instant;
 
@@ -216,4 +219,42 @@ fn main() {
         per_batched * 1e9
     );
     println!("  checksum (Σ daily ΔF_TOA): {checksum:.6}");
+
+    // Per solver and number of streams: the same observations (a subset for the slower
+    // solvers), one thread, best of three; obs/s per core by the thread's CPU time where
+    // available, else by the wall clock.
+    println!("  per solver (one thread, default settings otherwise):");
+    let per_core = |settings: &Settings, subset: &[Observation]| -> f64 {
+        let ctx = Context::new(settings);
+        let mut best = f64::INFINITY;
+        for _ in 0..3 {
+            let cpu = thread_cpu_seconds();
+            let t = Instant::now();
+            for o in subset {
+                black_box(compute_observation(black_box(o), settings, &ctx));
+            }
+            let wall = t.elapsed().as_secs_f64();
+            let used = match (cpu, thread_cpu_seconds()) {
+                (Some(a), Some(b)) => b - a,
+                _ => wall,
+            };
+            best = best.min(used);
+        }
+        subset.len() as f64 / best
+    };
+    let two_stream = per_core(&settings, &obs[..2000]);
+    println!("    two-stream (delta-Eddington): {two_stream:10.0} obs/s per core");
+    for streams in [4, 6, 8, 16] {
+        let s = Settings {
+            method: Method::DiscreteOrdinates,
+            streams,
+            ..Settings::default()
+        };
+        let count = if streams <= 8 { 100 } else { 20 };
+        let rate = per_core(&s, &obs[..count]);
+        println!(
+            "    discrete ordinates, {streams:2} streams: {rate:10.1} obs/s per core ({:.0}× the two-stream cost)",
+            two_stream / rate
+        );
+    }
 }

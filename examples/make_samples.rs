@@ -730,17 +730,17 @@ fn make_spectral(dir: &Path) -> Result<usize, XlsxError> {
         "latitude",
         "longitude",
         "altitude",
-        "AOD_440",
-        "AOD_675",
-        "AOD_870",
-        "SSA_440",
-        "SSA_675",
-        "SSA_870",
-        "SSA_1020",
-        "ASYM_440",
-        "ASYM_675",
-        "ASYM_870",
-        "ASYM_1020",
+        "AOD 440nm",
+        "AOD 675nm",
+        "AOD 870nm",
+        "SSA 440nm",
+        "SSA 675nm",
+        "SSA 870nm",
+        "SSA 1020nm",
+        "g 440nm",
+        "g 675nm",
+        "g 870nm",
+        "g 1020nm",
     ];
     let units = [
         "", "ISO 8601", "deg N", "deg E", "m", "-", "-", "-", "-", "-", "-", "-", "-", "-", "-",
@@ -902,7 +902,7 @@ fn make_messy(dir: &Path) -> Result<Vec<Fault>, XlsxError> {
                 faults.push((
                     7,
                     "empty ozone cell".into(),
-                    "accept: default ozone column applies and is listed as an assumption",
+                    "accept: default ozone applies, with a row warning naming the cell and the value used",
                 ));
             }
             23 => {
@@ -910,7 +910,7 @@ fn make_messy(dir: &Path) -> Result<Vec<Fault>, XlsxError> {
                 faults.push((
                     8,
                     "fill value -999 in precipitable water".into(),
-                    "accept: default water column applies and is listed as an assumption",
+                    "accept: default water applies, with a row warning naming the cell and the value used",
                 ));
             }
             27 => {
@@ -918,7 +918,7 @@ fn make_messy(dir: &Path) -> Result<Vec<Fault>, XlsxError> {
                 faults.push((
                     4,
                     "fill value N/A in Angstrom exponent".into(),
-                    "accept: default Angstrom exponent applies and is listed as an assumption",
+                    "reject: Angstrom exponent missing in a provided column (accept with a row warning when [input] fallback lists angstrom)",
                 ));
             }
             31..=33 => {
@@ -961,7 +961,11 @@ fn make_messy(dir: &Path) -> Result<Vec<Fault>, XlsxError> {
             }
             62 => {
                 cells[2] = Cell::Text("not recorded".into());
-                faults.push((2, "time text not recorded".into(), "reject: time missing"));
+                faults.push((
+                    2,
+                    "time text not recorded".into(),
+                    "accept: placed on its date; 24-hour values computed, instantaneous left empty, with a row warning",
+                ));
             }
             67 => {
                 cells[2] = Cell::Text(o.time_utc.format("%H:%M").to_string());
@@ -1272,6 +1276,245 @@ fn make_bad(dir: &Path, obs: &[Obs]) -> Result<(), Box<dyn std::error::Error>> {
     Ok(())
 }
 
+// ---------------------------------------------------------------------------------------------
+// A single-site station workbook with a key/value metadata sheet (xlsx and ods)
+// ---------------------------------------------------------------------------------------------
+
+/// Short name of the invented single-site station, used in its file names.
+pub const STATION: &str = "scaurhowe";
+
+/// A cell of the station workbook, written the same way to xlsx and ods.
+#[derive(Clone, Debug, PartialEq)]
+enum StationCell {
+    Text(String),
+    Num(f64),
+    /// A date-time cell (local clock of the logger).
+    DateTime(NaiveDateTime),
+}
+
+/// One sheet of the station workbook: name and rows of cells.
+type StationSheet = (&'static str, Vec<Vec<StationCell>>);
+
+/// The invented station: one site, no site or coordinate columns in the data sheet, a
+/// key/value metadata sheet (label | value | unit or note, the site name in the first row) and
+/// a metadata line above the header saying part of the same. Returns the sheets.
+fn station_sheets() -> Vec<StationSheet> {
+    use StationCell::{DateTime, Num, Text};
+    let t = |s: &str| Text(s.to_string());
+    let meta = vec![
+        vec![t("Scaur Howe \u{2014} fell station, invented data")],
+        vec![t("Latitude"), Num(54.6121), t("deg N")],
+        vec![t("Longitude"), Num(3.1042), t("deg W")],
+        vec![t("Elevation"), Num(1024.0), t("ft")],
+        vec![
+            t("Surface albedo (broadband)"),
+            Num(0.17),
+            t("grass and heather"),
+        ],
+        vec![
+            t("Time zone"),
+            t("local summer time = UTC+1"),
+            t("the logger clock is not changed in winter"),
+        ],
+        vec![t("Instrument"), t("invented sun photometer")],
+        vec![t("Note"), t(INVENTED_STATION_NOTE)],
+    ];
+    let mut rng = SplitMix64::new(20_260_402);
+    let mut data = vec![
+        vec![t(
+            "Scaur Howe sun-photometer log: INVENTED sample data for hazebook",
+        )],
+        vec![t(
+            "Site: Scaur Howe; Latitude: 54.6121 N; Longitude: 3.1042 W",
+        )],
+        [
+            "Time (local)",
+            "AOD 500nm",
+            "Angstrom 440-870",
+            "SSA 550nm",
+            "g 550nm",
+            "Water vapour (cm)",
+        ]
+        .iter()
+        .map(|h| t(h))
+        .collect(),
+    ];
+    let mut n = 0;
+    let mut day = date(2026, 4, 2);
+    while day <= date(2026, 6, 28) {
+        if rng.uniform() < 0.3 {
+            let k = rng.range(3, 6);
+            let mut minute = 9 * 60 + rng.range(0, 50);
+            for _ in 0..k {
+                let time =
+                    day.and_hms_opt(0, 0, 0).expect("midnight") + Duration::minutes(minute as i64);
+                let aod = round_to(0.06 * (0.35 * rng.normal()).exp() + 0.02, 3);
+                let angstrom = round_to(1.2 + 0.15 * rng.normal(), 2);
+                let ssa = round_to((0.95 + 0.015 * rng.normal()).min(0.995), 3);
+                let g = round_to(0.68 + 0.02 * rng.normal(), 3);
+                let water = round_to(1.1 + 0.25 * rng.normal().abs(), 2);
+                data.push(vec![
+                    DateTime(time),
+                    Num(aod),
+                    Num(angstrom),
+                    Num(ssa),
+                    Num(g),
+                    Num(water),
+                ]);
+                n += 1;
+                minute += 50 + rng.range(0, 60);
+            }
+        }
+        day += Duration::days(1);
+    }
+    debug_assert!(n > 0);
+    vec![("observations", data), ("Station", meta)]
+}
+
+/// Says, in the station workbook, that its data are invented.
+pub const INVENTED_STATION_NOTE: &str = "INVENTED SAMPLE DATA. The Scaur Howe station, its \
+     coordinates and every value in this file are invented for testing and demonstrating \
+     hazebook. They are not measurements.";
+
+fn write_station_xlsx(path: &Path, sheets: &[StationSheet]) -> Result<(), XlsxError> {
+    let mut wb = new_workbook("Scaur Howe fell station: sun-photometer log (invented)")?;
+    let when = datetime_format();
+    for (name, rows) in sheets {
+        let ws = wb.add_worksheet();
+        ws.set_name(*name)?;
+        for (r, row) in rows.iter().enumerate() {
+            for (c, cell) in row.iter().enumerate() {
+                let (r, c) = (r as u32, c as u16);
+                match cell {
+                    StationCell::Text(s) => ws.write_string(r, c, s)?,
+                    StationCell::Num(v) => ws.write_number(r, c, *v)?,
+                    StationCell::DateTime(t) => {
+                        ws.write_datetime_with_format(r, c, excel_datetime(*t)?, &when)?
+                    }
+                };
+            }
+        }
+        ws.set_column_width(0, 28)?;
+        ws.set_column_range_width(1, 5, 16)?;
+    }
+    wb.save(path)
+}
+
+fn xml_escape(s: &str) -> String {
+    s.replace('&', "&amp;")
+        .replace('<', "&lt;")
+        .replace('>', "&gt;")
+        .replace('"', "&quot;")
+}
+
+/// The content.xml of an OpenDocument spreadsheet (OASIS OpenDocument 1.2, part 1, §9.1
+/// tables): one `table:table` per sheet, strings as `office:value-type="string"`, numbers as
+/// `float`, date-times as `date` with an ISO 8601 `office:date-value`.
+fn ods_content(sheets: &[StationSheet]) -> String {
+    let mut x = String::from(
+        "<?xml version=\"1.0\" encoding=\"UTF-8\"?>\n<office:document-content \
+         xmlns:office=\"urn:oasis:names:tc:opendocument:xmlns:office:1.0\" \
+         xmlns:table=\"urn:oasis:names:tc:opendocument:xmlns:table:1.0\" \
+         xmlns:text=\"urn:oasis:names:tc:opendocument:xmlns:text:1.0\" office:version=\"1.2\">\
+         <office:body><office:spreadsheet>",
+    );
+    for (name, rows) in sheets {
+        let _ = write!(x, "<table:table table:name=\"{}\">", xml_escape(name));
+        for row in rows {
+            x.push_str("<table:table-row>");
+            for cell in row {
+                match cell {
+                    StationCell::Text(s) => {
+                        let s = xml_escape(s);
+                        let _ = write!(
+                            x,
+                            "<table:table-cell office:value-type=\"string\"><text:p>{s}</text:p></table:table-cell>"
+                        );
+                    }
+                    StationCell::Num(v) => {
+                        let _ = write!(
+                            x,
+                            "<table:table-cell office:value-type=\"float\" office:value=\"{v}\"><text:p>{v}</text:p></table:table-cell>"
+                        );
+                    }
+                    StationCell::DateTime(t) => {
+                        let iso = t.format("%Y-%m-%dT%H:%M:%S");
+                        let shown = t.format("%Y-%m-%d %H:%M:%S");
+                        let _ = write!(
+                            x,
+                            "<table:table-cell office:value-type=\"date\" office:date-value=\"{iso}\"><text:p>{shown}</text:p></table:table-cell>"
+                        );
+                    }
+                }
+            }
+            x.push_str("</table:table-row>");
+        }
+        x.push_str("</table:table>");
+    }
+    x.push_str("</office:spreadsheet></office:body></office:document-content>\n");
+    x
+}
+
+/// A zip archive of stored (uncompressed) entries in the given order, with the zip format's
+/// earliest timestamp on every entry so that the bytes are the same on every run (written with
+/// the `zip` crate).
+fn stored_zip(entries: &[(&str, &[u8])]) -> Vec<u8> {
+    use std::io::Write;
+    let mut w = zip::ZipWriter::new(std::io::Cursor::new(Vec::new()));
+    let options = zip::write::SimpleFileOptions::default()
+        .compression_method(zip::CompressionMethod::Stored)
+        .last_modified_time(zip::DateTime::default());
+    for (name, data) in entries {
+        w.start_file(*name, options).expect("zip entry");
+        w.write_all(data).expect("zip entry data");
+    }
+    w.finish().expect("zip archive").into_inner()
+}
+
+/// Write an OpenDocument spreadsheet: the `mimetype` entry first and stored (OpenDocument 1.2,
+/// part 3, §3.3), then a manifest, the metadata and the content, all stored; the bytes are
+/// the same on every run.
+fn write_station_ods(path: &Path, sheets: &[StationSheet]) -> std::io::Result<()> {
+    let manifest = "<?xml version=\"1.0\" encoding=\"UTF-8\"?>\n<manifest:manifest \
+          xmlns:manifest=\"urn:oasis:names:tc:opendocument:xmlns:manifest:1.0\" manifest:version=\"1.2\">\n \
+          <manifest:file-entry manifest:full-path=\"/\" manifest:version=\"1.2\" \
+          manifest:media-type=\"application/vnd.oasis.opendocument.spreadsheet\"/>\n \
+          <manifest:file-entry manifest:full-path=\"content.xml\" manifest:media-type=\"text/xml\"/>\n \
+          <manifest:file-entry manifest:full-path=\"meta.xml\" manifest:media-type=\"text/xml\"/>\n\
+          </manifest:manifest>\n";
+    let meta = format!(
+        "<?xml version=\"1.0\" encoding=\"UTF-8\"?>\n<office:document-meta \
+         xmlns:office=\"urn:oasis:names:tc:opendocument:xmlns:office:1.0\" \
+         xmlns:meta=\"urn:oasis:names:tc:opendocument:xmlns:meta:1.0\" \
+         xmlns:dc=\"http://purl.org/dc/elements/1.1/\" office:version=\"1.2\"><office:meta>\
+         <meta:generator>hazebook sample generator (examples/make_samples.rs)</meta:generator>\
+         <dc:title>Scaur Howe fell station: sun-photometer log (invented)</dc:title>\
+         <dc:description>{}</dc:description>\
+         <meta:creation-date>2026-12-01T00:00:00</meta:creation-date>\
+         </office:meta></office:document-meta>\n",
+        xml_escape(INVENTED_STATION_NOTE)
+    );
+    let content = ods_content(sheets);
+    let bytes = stored_zip(&[
+        (
+            "mimetype",
+            b"application/vnd.oasis.opendocument.spreadsheet",
+        ),
+        ("META-INF/manifest.xml", manifest.as_bytes()),
+        ("meta.xml", meta.as_bytes()),
+        ("content.xml", content.as_bytes()),
+    ]);
+    std::fs::write(path, bytes)
+}
+
+/// 6. The single-site station workbook, as xlsx and as ods (same cells).
+fn make_station(dir: &Path) -> Result<usize, Box<dyn std::error::Error>> {
+    let sheets = station_sheets();
+    write_station_xlsx(&dir.join(format!("{STATION}-station.xlsx")), &sheets)?;
+    write_station_ods(&dir.join(format!("{STATION}-station.ods")), &sheets)?;
+    Ok(sheets[0].1.len() - 3)
+}
+
 fn main() -> Result<(), Box<dyn std::error::Error>> {
     let dir: PathBuf = std::env::args_os()
         .nth(1)
@@ -1303,6 +1546,8 @@ fn main() -> Result<(), Box<dyn std::error::Error>> {
     );
     let n = make_csv(&dir, &campaign)?;
     println!("{CAMPAIGN}-sample.csv: {n} rows");
+    let n = make_station(&dir)?;
+    println!("{STATION}-station.xlsx, {STATION}-station.ods: {n} observations, metadata sheet");
     make_bad(&dir.join("bad"), &campaign)?;
     println!("bad/: missing-ssa.xlsx, empty-sheet.xlsx, truncated.xlsx, not-a-workbook.xlsx");
     Ok(())

@@ -2,20 +2,26 @@
 //!
 //! Exit status: 0 success; 1 success with rejected rows (report written, rows listed on the
 //! Rejected sheet); 2 run failed and nothing was written (bad arguments, unreadable input,
-//! missing column, bad job file).
+//! missing column, bad job file, strict mode refusing an ignored column or a default).
 
 use std::path::PathBuf;
 
 use clap::{Args, Parser, Subcommand};
 
 use crate::job;
-use crate::physics::Closure;
+use crate::physics::{Closure, Method};
 use crate::report::SideFormat;
 
 const EXIT_HELP: &str = "Exit status:
   0  success: every row computed and the report written
   1  success with rejected rows: report written, see its Rejected sheet
-  2  failed: nothing written (bad arguments, unreadable input, missing column, bad job file)";
+  2  failed: nothing written (bad arguments, unreadable input, missing column, bad job file,
+     strict mode refusing an ignored column or a built-in default)";
+
+const CHECK_EXIT_HELP: &str = "Exit status:
+  0  every row would be computed
+  1  some rows would be rejected (each is listed with its cell)
+  2  the inputs cannot be read (bad arguments, unreadable input, missing column, bad job file)";
 
 /// Clear-sky shortwave aerosol direct radiative effect from campaign workbooks.
 ///
@@ -39,9 +45,15 @@ pub enum Command {
     #[command(after_help = EXIT_HELP)]
     Run(RunArgs),
     /// Read and validate only: print the mapping, warnings and rejected rows with cells.
-    #[command(after_help = EXIT_HELP)]
+    ///
+    /// Writes nothing. Cost: reading the inputs; no radiative transfer.
+    #[command(after_help = CHECK_EXIT_HELP)]
     Check(CheckArgs),
-    /// Write a commented job file (mapping pre-filled from a workbook) and a template copy.
+    /// Write a commented job file (mapping and site values pre-filled from a workbook) and a
+    /// template copy.
+    ///
+    /// With --from, what the workbook gives is written out and what it lacks is left as a
+    /// commented placeholder to fill in. Cost: reading the workbook once.
     Init(InitArgs),
     /// List the built-in report templates, or print one.
     Templates(TemplatesArgs),
@@ -68,6 +80,11 @@ pub struct SelectArgs {
     /// Reference date for previous-month and {date} (YYYY-MM-DD); default: today (UTC).
     #[arg(long, value_name = "YYYY-MM-DD")]
     pub today: Option<String>,
+    /// Fail (exit 2, nothing written) when a column is not read without being listed in the
+    /// job file's [input] ignore_columns, or a built-in default applies to a quantity not in
+    /// [input] defaults_allowed. Same as [input] strict = true.
+    #[arg(long)]
+    pub strict: bool,
 }
 
 #[derive(Debug, Args, Clone)]
@@ -125,7 +142,8 @@ pub struct MergeArgs {
 /// Side outputs and messages, shared by `run` and `merge`.
 #[derive(Debug, Args, Clone)]
 pub struct OutputArgs {
-    /// Also write the results at full precision as csv or parquet.
+    /// Also write the results at full precision as csv (units in the column names), parquet,
+    /// or CF-1.8 NetCDF (`.nc` with every row, `.summary.nc` with the site × month statistics).
     #[arg(long, value_enum)]
     pub side_output: Option<SideOutputArg>,
     /// Append log lines to this file (timestamps, counts, outputs, problems).
@@ -140,6 +158,7 @@ pub struct OutputArgs {
 pub enum SideOutputArg {
     Csv,
     Parquet,
+    Netcdf,
 }
 
 impl From<SideOutputArg> for SideFormat {
@@ -147,6 +166,7 @@ impl From<SideOutputArg> for SideFormat {
         match v {
             SideOutputArg::Csv => SideFormat::Csv,
             SideOutputArg::Parquet => SideFormat::Parquet,
+            SideOutputArg::Netcdf => SideFormat::Netcdf,
         }
     }
 }
@@ -193,7 +213,8 @@ pub struct GridArgs {
     /// Surface albedo values.
     #[arg(long, value_delimiter = ',', default_value = "0.05,0.2")]
     pub albedo: Vec<f64>,
-    /// cos(solar zenith) values for instantaneous cases.
+    /// cos(solar zenith) values for instantaneous cases [default: 0.25,0.5,0.75,1.0 unless
+    /// --latitude and --date give 24-hour means].
     #[arg(long, value_delimiter = ',', conflicts_with_all = ["latitude", "date"])]
     pub mu0: Vec<f64>,
     /// Latitudes [deg] for 24-hour means (with --date).
@@ -217,8 +238,10 @@ pub struct GridArgs {
     /// Switch gas absorption on (300 DU ozone, 1.5 cm water unless given).
     #[arg(long)]
     pub gases: bool,
+    /// Ozone column [DU] (used with --gases).
     #[arg(long, default_value_t = 300.0)]
     pub ozone_du: f64,
+    /// Precipitable water [cm] (used with --gases).
     #[arg(long, default_value_t = 1.5)]
     pub water_cm: f64,
     /// Surface pressure [hPa].
@@ -227,6 +250,18 @@ pub struct GridArgs {
     /// Two-stream closure.
     #[arg(long, value_enum, default_value = "delta-eddington")]
     pub closure: ClosureArg,
+    /// Flux solver: the two-stream closure of --closure, or discrete ordinates (delta-M)
+    /// with --streams streams.
+    #[arg(long, value_enum, default_value = "two-stream")]
+    pub solver: SolverArg,
+    /// Streams of the discrete-ordinate solver (even, 2–64).
+    #[arg(long, default_value_t = crate::physics::DEFAULT_STREAMS)]
+    pub streams: usize,
+    /// A purely molecular layer (Rayleigh phase function, no absorption) of this optical
+    /// depth above the aerosol layer, which then holds no molecules (single band only;
+    /// instead of --rayleigh).
+    #[arg(long, conflicts_with_all = ["rayleigh", "spectral"])]
+    pub rayleigh_above: Option<f64>,
     /// Solar constant [W m⁻²].
     #[arg(long, default_value_t = 1361.0)]
     pub solar_constant: f64,
@@ -252,6 +287,21 @@ impl From<ClosureArg> for Closure {
             ClosureArg::Quadrature => Closure::Quadrature,
             ClosureArg::HemisphericMean => Closure::HemisphericMean,
             ClosureArg::Pifm => Closure::Pifm,
+        }
+    }
+}
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq, clap::ValueEnum)]
+pub enum SolverArg {
+    TwoStream,
+    DiscreteOrdinates,
+}
+
+impl From<SolverArg> for Method {
+    fn from(s: SolverArg) -> Self {
+        match s {
+            SolverArg::TwoStream => Method::TwoStream,
+            SolverArg::DiscreteOrdinates => Method::DiscreteOrdinates,
         }
     }
 }

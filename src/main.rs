@@ -9,7 +9,8 @@ fn main() -> ExitCode {
     match hazebook::cli::run(cli) {
         Ok(status) => ExitCode::from(status.code()),
         Err(err) => {
-            eprintln!("error: {err:#}");
+            let msg = format!("{err:#}");
+            eprintln!("error: {}", hazebook::job::log::escape_controls(&msg));
             ExitCode::from(hazebook::cli::Status::Failed.code())
         }
     }

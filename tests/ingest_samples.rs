@@ -141,7 +141,7 @@ fn messy_rejects_exactly_the_listed_faults() {
         "{:?}",
         ing.warnings
     );
-    for q in ["ozone_du", "water_cm", "angstrom"] {
+    for q in ["ozone_du", "water_cm"] {
         assert!(
             ing.assumptions
                 .iter()
@@ -149,6 +149,20 @@ fn messy_rejects_exactly_the_listed_faults() {
             "{q}"
         );
     }
+    // The fill-value Ångström exponent rejects its row (no `[input] fallback` allows it),
+    // so no row takes the default.
+    assert!(
+        !ing.assumptions.iter().any(|a| a.quantity == "angstrom"),
+        "{:?}",
+        ing.assumptions
+    );
+    // The row with a date but no readable time is placed on its date, and says so.
+    let i = ing.origins.iter().position(|o| o.row == 71).unwrap();
+    assert!(
+        hazebook::ingest::lacks_time_of_day(&ing.row_warnings[i]),
+        "{:?}",
+        ing.row_warnings[i]
+    );
     let dup = ing.rejected.iter().find(|r| r.row == 58).unwrap();
     assert!(dup.reason.contains("duplicate of row 57"));
 }
@@ -156,7 +170,9 @@ fn messy_rejects_exactly_the_listed_faults() {
 #[test]
 fn csv_sample() {
     let ing = read("brinefell-sample.csv");
-    assert_eq!((ing.counts.computed, ing.counts.rejected), (36, 0));
+    // G9 holds "N/A" for the Ångström exponent of a provided column: rejected, not defaulted.
+    assert_eq!((ing.counts.computed, ing.counts.rejected), (35, 1));
+    assert_eq!(ing.rejected[0].cell, "G9");
     assert_eq!(ing.origins[0].row, 2);
 }
 

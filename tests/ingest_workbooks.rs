@@ -5,9 +5,9 @@ mod ingest_support;
 
 use chrono::{TimeZone, Utc};
 use hazebook::ingest::{
-    IngestError, Period, SiteInfo, SurfaceType, ValueSource, fit_angstrom, mapping_summary,
-    read_inputs,
+    IngestError, Period, SiteInfo, SurfaceType, ValueSource, fit_angstrom, read_inputs,
 };
+use hazebook::job::summary::understanding;
 use hazebook::physics::Surface;
 use ingest_support::{W, W::*, assert_reconciles, read, spec, tmp, write_minimal_xlsx, write_xlsx};
 
@@ -203,13 +203,22 @@ fn messy_layout_reads_and_accounts_for_every_row() {
         ("I", "mm", "PW")
     );
     assert!(!ing.mapping.iter().any(|m| m.header == "remarks"));
-    let summary = mapping_summary(&ing);
+    let summary = understanding(&ing).join("\n");
     assert!(
-        summary.contains("aod_500") && summary.contains("column E"),
+        summary
+            .lines()
+            .any(|l| l.trim_start().starts_with("E ") && l.contains("→ aod_500")),
         "{summary}"
     );
     assert!(
-        summary.contains("6 read = 2 computed + 4 rejected + 0 outside"),
+        summary.contains("6 read = 2 to compute + 4 rejected"),
+        "{summary}"
+    );
+    // The remarks column is not read, and the summary says so with the reason.
+    assert!(
+        summary
+            .lines()
+            .any(|l| l.contains("\"remarks\"") && l.contains("ignored: not a quantity")),
         "{summary}"
     );
 }
@@ -444,6 +453,9 @@ fn site_sheet_and_job_overrides() {
     let mut s = spec(&[&p]);
     s.columns.insert("site".into(), "A".into());
     s.columns.insert("time".into(), "when".into());
+    // The blank albedo cells take the site's value: a fallback the job allows (an empty cell
+    // in a provided column is otherwise a rejection; README, "Empty and fill-value cells").
+    s.fallback = Some(vec!["albedo".into()]);
     s.period = Some(Period {
         label: "2024-01-10".into(),
         start: utc(2024, 1, 10, 0, 0),

@@ -5,6 +5,7 @@ use std::path::{Path, PathBuf};
 use std::process::Output;
 
 mod binary_support;
+mod outside_readers;
 
 use binary_support::{run, samples, text};
 use calamine::{Data, Reader, open_workbook_auto};
@@ -215,6 +216,7 @@ fn site_partitions_merge_to_the_single_run() {
         merged_report.display()
     );
     assert_same_report(&single_report, &merged_report);
+    outside_readers::keep(&merged_report, "merge-sites");
     let all = sheets(&merged_report);
     assert_eq!(sheet(&all, "Results").len(), 1837 + 2);
     assert_eq!(about_value(&all, "Rows read"), Data::Float(1837.0));

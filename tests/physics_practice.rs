@@ -1,10 +1,13 @@
-//! Checks of whole calculations against the facts of the trade ("common practice", brief §3)
-//! and against outside references that say where those rough facts hold: DISORT broadband
-//! daily means (`tests/fixtures/disort_broadband.csv`, written by
-//! `tests/reference/practice_reference.py`) and pvlib's spectrl2 global irradiance
-//! (`tests/fixtures/spectrl2_global.csv`, written by `tests/reference/pvlib_reference.py`).
-//! Each check names its source beside it; every measured number quoted below is printed by
-//! the test that measures it (`cargo test --test physics_practice -- --nocapture`).
+//! Checks of whole calculations against the facts of the trade ("common practice") and
+//! against outside references that say where those rough facts hold: DISORT broadband daily
+//! means (`tests/fixtures/disort_broadband.csv`, written by
+//! `tests/reference/practice_reference.py` on the G173 table's own wavelength grid, with and
+//! without gases, with a surface-based and an elevated aerosol) and pvlib's spectrl2 global
+//! irradiance (`tests/fixtures/spectrl2_global.csv`, written by
+//! `tests/reference/pvlib_reference.py`). Each check names its source beside it; values that
+//! are only the model's own (regression pins) are kept apart and called so. Every measured
+//! number quoted below is printed by the test that measures it
+//! (`cargo test --test physics_practice -- --nocapture`).
 
 use chrono::{TimeZone, Utc};
 use hazebook::physics::forcing::{Context, compute_observation};
@@ -95,123 +98,290 @@ fn annual_efficiency(latitude_deg: f64, aod: f64, ssa: f64, g: f64, albedo: f64)
     sum / n / aod
 }
 
-/// The column of `tests/reference/practice_reference.py`: gases off, no Earth–Sun distance
-/// factor, otherwise the default settings.
-fn gas_free() -> Settings {
-    Settings {
-        gases: false,
-        earth_sun_distance: false,
-        ..Settings::default()
+/// One row of `disort_broadband.csv` (written by `tests/reference/practice_reference.py`).
+#[derive(Debug)]
+struct Broadband {
+    latitude_deg: f64,
+    month: u32,
+    day: u32,
+    aod_550: f64,
+    angstrom: f64,
+    ssa: f64,
+    g: f64,
+    albedo: f64,
+    toa_down: f64,
+    dre_toa: f64,
+    dre_sfc: f64,
+    /// 0 (with water 0): gases off.
+    ozone_du: f64,
+    water_cm: f64,
+    base_km: f64,
+    top_km: f64,
+}
+
+fn broadband() -> Vec<Broadband> {
+    fixture("disort_broadband.csv")
+        .into_iter()
+        .map(|r| Broadband {
+            latitude_deg: r[0],
+            month: r[2] as u32,
+            day: r[3] as u32,
+            aod_550: r[4],
+            angstrom: r[5],
+            ssa: r[6],
+            g: r[7],
+            albedo: r[8],
+            toa_down: r[9],
+            dre_toa: r[10],
+            dre_sfc: r[11],
+            ozone_du: r[12],
+            water_cm: r[13],
+            base_km: r[14],
+            top_km: r[15],
+        })
+        .collect()
+}
+
+impl Broadband {
+    fn gases(&self) -> bool {
+        self.ozone_du > 0.0 || self.water_cm > 0.0
+    }
+
+    /// The fixture row whose case matches, from the optics, surface and gases.
+    fn find(ssa: f64, g: f64, aod: f64, albedo: f64, gases: bool, elevated: bool) -> Broadband {
+        broadband()
+            .into_iter()
+            .find(|b| {
+                b.latitude_deg == 30.0
+                    && (b.ssa, b.g, b.aod_550, b.albedo) == (ssa, g, aod, albedo)
+                    && b.gases() == gases
+                    && (b.base_km > 0.0) == elevated
+            })
+            .unwrap_or_else(|| panic!("no DISORT case ω {ssa} g {g} AOD {aod} A {albedo}"))
+    }
+
+    /// Our 24-hour means for the same column: the default settings without the Earth–Sun
+    /// distance factor (the reference has none), gases as in the case.
+    fn ours(&self) -> ObservationResult {
+        let s = Settings {
+            gases: self.gases(),
+            earth_sun_distance: false,
+            ..Settings::default()
+        };
+        let mut o = observation(
+            self.latitude_deg,
+            (self.month, self.day),
+            self.aod_550,
+            self.angstrom,
+            self.ssa,
+            self.g,
+            self.albedo,
+        );
+        if self.gases() {
+            o.ozone_du = self.ozone_du;
+            o.water_cm = self.water_cm;
+        }
+        o.layer = AerosolLayer {
+            base_km: self.base_km,
+            top_km: self.top_km,
+        };
+        run(&o, &s)
     }
 }
 
-/// DISORT (16 streams; disortpp 1.2.1; Stamnes et al. 1988) broadband 24-hour means of the
-/// same gas-free column: 31 G173 bands, Bodhaine Rayleigh above and inside a 0–2 km aerosol
-/// layer, Spencer day, 24 zenith angles (fixture `disort_broadband.csv`). Delta-Eddington is
-/// known to scatter too little back at high and moderate sun for g ≈ 0.7 in thin layers and
-/// to err by a few per cent of the incident flux (King & Harshvardhan 1986, from memory);
-/// measured here: ΔF_TOA 0.6–6.7 % and ΔF_SFC 5.5–6.7 % less negative than DISORT;
-/// tolerance 10 % of the DISORT value.
+/// DISORT (16 streams; disortpp 1.2.1; Stamnes et al. 1988) broadband 24-hour means solved at
+/// each of the 2002 wavelengths of the G173 table, built from the published methods alone
+/// (Bodhaine Rayleigh, Bird & Riordan gases, U.S. Standard Atmosphere split; see the script):
+/// 8 cases at the March equinox, 0° and 30° N — gas-free and with 300 DU ozone and 1.4 cm
+/// water, ω 0.85–1, albedo 0.05 and 0.15, the aerosol in 0–2 km or elevated at 3–5 km.
+/// Delta-Eddington is known to scatter too little back at high and moderate sun for
+/// g ≈ 0.7 in thin layers and to err by a few per cent of the incident flux (King &
+/// Harshvardhan 1986, from memory). Measured: ΔF_SFC 4.8–6.8 % less negative than DISORT in
+/// every case; ΔF_TOA within 0.6 % for the scattering aerosol with gases and 5.6–6.8 % less
+/// negative without, 5 % more negative for the absorbing one over A = 0.05 and 21 % (over
+/// A = 0.15) and 29 % (elevated) more negative where the TOA effect is a small difference
+/// near the critical SSA — there 0.67 and 0.76 W m⁻², 0.2 % of the incident flux, as in
+/// the single-layer checks of `tests/physics_disort.rs`. Tolerance, per case and quantity:
+/// |ours − DISORT| ≤ 7 % of |DISORT| + 0.2 % of the incident flux (largest share of it
+/// used: 0.82 for ΔF_TOA, 0.59 for ΔF_SFC), and the incident flux (same day geometry) to 1e-6. It would catch
+/// a lost band, a Rayleigh or gas depth in the wrong layer, a wrong day integral, or a
+/// ΔF_SFC off by 10 % in the absorbing cases.
 #[test]
 fn broadband_daily_forcing_agrees_with_disort() {
-    let s = gas_free();
-    for r in fixture("disort_broadband.csv") {
-        let (lat, month, day) = (r[0], r[2] as u32, r[3] as u32);
-        let o = observation(lat, (month, day), r[4], r[5], r[6], r[7], r[8]);
-        let ours = run(&o, &s);
-        let (down, toa, sfc) = (r[9], r[10], r[11]);
+    let mut worst: (f64, f64) = (0.0, 0.0);
+    for b in broadband() {
+        let ours = b.ours();
         // Same day geometry and solar constant: the incident flux agrees closely.
         assert!(
-            (ours.daily.clean.toa_down / down - 1.0).abs() < 1e-6,
-            "{r:?}: {}",
+            (ours.daily.clean.toa_down / b.toa_down - 1.0).abs() < 1e-6,
+            "{b:?}: {}",
             ours.daily.clean.toa_down
         );
-        let e_toa = ours.daily.dre_toa / toa - 1.0;
-        let e_sfc = ours.daily.dre_sfc / sfc - 1.0;
+        let e_toa = ours.daily.dre_toa / b.dre_toa - 1.0;
+        let e_sfc = ours.daily.dre_sfc / b.dre_sfc - 1.0;
         println!(
-            "lat {lat} ω {}: ΔF_TOA ours {:.3} DISORT {toa:.3} ({:+.1} %), ΔF_SFC ours {:.3} \
-             DISORT {sfc:.3} ({:+.1} %)",
-            r[6],
+            "lat {} ω {} A {} gases {} base {}: ΔF_TOA ours {:.3} DISORT {:.3} ({:+.1} %), \
+             ΔF_SFC ours {:.3} DISORT {:.3} ({:+.1} %)",
+            b.latitude_deg,
+            b.ssa,
+            b.albedo,
+            b.gases(),
+            b.base_km,
             ours.daily.dre_toa,
+            b.dre_toa,
             100.0 * e_toa,
             ours.daily.dre_sfc,
+            b.dre_sfc,
             100.0 * e_sfc
         );
-        assert!(e_toa.abs() < 0.10 && e_sfc.abs() < 0.10, "{r:?}");
+        // Share of the bound 7 % |DISORT| + 0.2 % of the incident flux used.
+        let used = |ours: f64, reference: f64| {
+            (ours - reference).abs() / (0.07 * reference.abs() + 0.002 * b.toa_down)
+        };
+        let u = (
+            used(ours.daily.dre_toa, b.dre_toa),
+            used(ours.daily.dre_sfc, b.dre_sfc),
+        );
+        worst = (worst.0.max(u.0), worst.1.max(u.1));
+        assert!(u.0 <= 1.0 && u.1 <= 1.0, "{b:?}: {u:?}");
+    }
+    println!(
+        "share of the bound used: ΔF_TOA {:.2}, ΔF_SFC {:.2}",
+        worst.0, worst.1
+    );
+}
+
+/// (a) Common practice: a purely scattering aerosol over a dark surface gives a clear-sky
+/// 24-hour TOA forcing efficiency of roughly −25 to −35 W m⁻² per unit AOD(550).
+///
+/// Checked against DISORT, not against this model: for the full column with gases at 30° N
+/// at the March equinox (a latitude whose annual-mean insolation, ≈ 365 W m⁻², is close to
+/// the global mean S₀/4 ≈ 340 W m⁻², where such rules are quoted; fixture
+/// `disort_broadband.csv`) DISORT gives −46.2 W m⁻² per unit AOD(550) for ω = 1, g = 0.7,
+/// AOD 0.1,
+/// albedo 0.05 — beyond the rough range, so the range does not describe that idealised
+/// aerosol — and −33.5 for what field campaigns call "mostly scattering"
+/// aerosol (ω 0.97, g 0.75, AOD 0.3), inside it: that is where the rule of thumb comes from.
+/// The test asserts both facts of the reference, and that our efficiencies are within 5 %
+/// of DISORT's (measured +0.4 % for both: −46.40 against −46.20 and −33.61 against
+/// −33.46). A model 10 % off, or one that met the rule of thumb for the idealised aerosol,
+/// fails.
+#[test]
+fn scattering_aerosol_efficiency_against_disort() {
+    let ideal = Broadband::find(1.0, 0.7, 0.1, 0.05, true, false);
+    let typical = Broadband::find(0.97, 0.75, 0.3, 0.05, true, false);
+    let rule = -35.0..=-25.0;
+    let ref_ideal = ideal.dre_toa / ideal.aod_550;
+    let ref_typical = typical.dre_toa / typical.aod_550;
+    assert!(ref_ideal < -40.0, "DISORT, idealised: {ref_ideal}");
+    assert!(
+        rule.contains(&ref_typical),
+        "DISORT, typical: {ref_typical}"
+    );
+    for (b, reference) in [(&ideal, ref_ideal), (&typical, ref_typical)] {
+        let ours = b.ours().daily.efficiency_toa;
+        println!(
+            "ω {} g {} AOD {}: efficiency ours {ours:.2}, DISORT {reference:.2} W m⁻² ({:+.1} %)",
+            b.ssa,
+            b.g,
+            b.aod_550,
+            100.0 * (ours / reference - 1.0)
+        );
+        assert!((ours / reference - 1.0).abs() < 0.05, "{b:?}: {ours}");
     }
 }
 
-/// (a) Common practice (brief §3): a purely scattering aerosol over a dark surface gives a
-/// clear-sky 24-hour TOA forcing efficiency of roughly −25 to −35 W m⁻² per unit AOD(550).
-///
-/// Conditions: ω = 1, g = 0.7, Ångström 1.3, AOD(550) 0.1, albedo 0.05, sea level, 300 DU,
-/// 1.4 cm, full spectrum with Rayleigh and gases, annual mean (24 days) at 30° N — a
-/// low/mid latitude whose annual-mean TOA insolation (≈ 365 W m⁻²) is close to the global
-/// mean S₀/4 ≈ 340 W m⁻², the setting in which such rules of thumb are quoted.
-///
-/// Finding: this aerosol gives −46 W m⁻² (−44 to −48 between the equator and 45° N; −46 at
-/// the March equinox at 30° N), beyond the rough range. The physics is not at fault: DISORT
-/// gives the same column, without gases, 5–7 % *more* negative than ours
-/// (`broadband_daily_forcing_agrees_with_disort`), and the thin-layer estimate
-/// ΔF/τ ≈ −S₀ D ⟨β⟩ (1 − A)² T² with D = ½, ⟨β⟩ ≈ 0.18 (delta-Eddington upscatter for
-/// g = 0.7, averaged over the day), (1 − A)² = 0.9, T² ≈ 0.7 and the spectral weighting of
-/// AOD (≈ 0.75 of AOD(550) over the solar spectrum for α = 1.3) is ≈ −58 (common practice,
-/// order of magnitude). The range is met by what field campaigns call "mostly scattering"
-/// aerosol: slightly absorbing, more forward scattering and at moderate AOD (ω 0.97, g 0.75,
-/// AOD 0.3: −33, checked below), which is where the rule of thumb comes from.
-///
-/// Tolerance for the idealised case: −52 to −40, i.e. the measured −46 ± 13 %, which holds
-/// the 7 % two-stream error against DISORT plus the 5 % spread between 0 and 45° N.
+/// Regression pins, not outside checks: the model's own annual-mean efficiencies at 30° N
+/// (24 days, the 7th and 22nd of each month, full column with gases and the Earth–Sun
+/// distance), as measured when the DISORT check above was written, ±4 %. The outside check
+/// of the same quantities is `scattering_aerosol_efficiency_against_disort` (one day); these
+/// pins only guard the annual mean against unnoticed change. Measured: −46.44 and −33.53
+/// (and −40.54 for ω 1 at AOD 0.5, which must lie between the first and 0).
 #[test]
-fn scattering_aerosol_efficiency_common_practice() {
+fn regression_pins_annual_efficiency() {
     let ideal = annual_efficiency(30.0, 0.1, 1.0, 0.7, 0.05);
     let typical = annual_efficiency(30.0, 0.3, 0.97, 0.75, 0.05);
+    let thick = annual_efficiency(30.0, 0.5, 1.0, 0.7, 0.05);
     println!(
         "annual mean at 30° N: ω 1, g 0.7, AOD 0.1: {ideal:.2}; ω 0.97, g 0.75, AOD 0.3: \
-         {typical:.2} W m⁻² per unit AOD(550)"
+         {typical:.2}; ω 1, AOD 0.5: {thick:.2} W m⁻² per unit AOD(550)"
     );
-    assert!((-52.0..=-40.0).contains(&ideal), "{ideal}");
-    assert!((-35.0..=-25.0).contains(&typical), "{typical}");
+    let pin = |x: f64, at: f64| (x / at - 1.0).abs() < 0.04;
+    assert!(pin(ideal, PIN_IDEAL), "{ideal}");
+    assert!(pin(typical, PIN_TYPICAL), "{typical}");
     // The efficiency weakens as AOD grows (multiple scattering saturates; common practice).
-    let thick = annual_efficiency(30.0, 0.5, 1.0, 0.7, 0.05);
     assert!(thick > ideal && thick < 0.0, "{thick} vs {ideal}");
 }
 
-/// (b) Common practice (brief §3): the surface effect of an absorbing aerosol is several
-/// times its TOA effect. ω = 0.85, g = 0.7, Ångström 1.3, AOD(550) 0.3, albedo 0.05 and
-/// 0.15, 30° N, 24-hour means at the March equinox. DISORT for the gas-free column at
-/// albedo 0.05 (fixture `disort_broadband.csv`) gives ΔF_SFC/ΔF_TOA = 3.3; ours, with gases,
-/// 3.2 at albedo 0.05 and 6.1 at 0.15 (the TOA effect shrinks towards the critical SSA as
-/// the surface brightens; Chýlek & Wong 1995, checked in `tests/physics_solver.rs`). Both
-/// must be between 2.5 and 10 (several times), the albedo-0.05 ratio within 15 % of DISORT's,
+const PIN_IDEAL: f64 = -46.0;
+const PIN_TYPICAL: f64 = -33.5;
+
+/// (b) Common practice: the surface effect of an absorbing aerosol is several times its TOA
+/// effect. ω = 0.85, g = 0.7, Ångström 1.3, AOD(550) 0.3, albedo 0.05 and 0.15, 30° N,
+/// 24-hour means at the March equinox, with gases. DISORT (fixture `disort_broadband.csv`)
+/// gives ΔF_SFC/ΔF_TOA = 3.52 and 7.74; ours 3.16 and 6.08 (the TOA effect shrinks towards
+/// the critical SSA as the surface brightens, Chýlek & Wong 1995, checked in
+/// `tests/physics_solver.rs`; there the ratio magnifies the small TOA error of
+/// `broadband_daily_forcing_agrees_with_disort`). Both must be between 2.5 and 10 (several
+/// times), ours within 25 % of DISORT's (measured −10 % and −21 %), rising with the albedo,
 /// and the atmosphere must absorb (ΔF_ATM > 0).
 #[test]
 fn absorbing_aerosol_surface_effect_is_several_times_toa() {
-    let s = Settings::default();
-    let disort = fixture("disort_broadband.csv")
-        .into_iter()
-        .find(|r| r[6] == 0.85)
-        .expect("absorbing case");
-    let disort_ratio = disort[11] / disort[10];
     let mut ratios = Vec::new();
     for albedo in [0.05, 0.15] {
-        let r = run(&observation(30.0, (3, 21), 0.3, 1.3, 0.85, 0.7, albedo), &s);
+        let b = Broadband::find(0.85, 0.7, 0.3, albedo, true, false);
+        let r = b.ours();
+        let disort_ratio = b.dre_sfc / b.dre_toa;
         let ratio = r.daily.dre_sfc / r.daily.dre_toa;
         println!(
             "albedo {albedo}: ΔF_TOA {:.2}, ΔF_SFC {:.2}, ΔF_ATM {:.2} W m⁻², ratio {ratio:.2} \
-             (DISORT, no gases, albedo 0.05: {disort_ratio:.2})",
+             (DISORT {disort_ratio:.2})",
             r.daily.dre_toa, r.daily.dre_sfc, r.daily.dre_atm
         );
         assert!(r.daily.dre_toa < 0.0 && r.daily.dre_sfc < 0.0);
         assert!((2.5..=10.0).contains(&ratio), "albedo {albedo}: {ratio}");
+        assert!(
+            (2.5..=10.0).contains(&disort_ratio),
+            "albedo {albedo}: {disort_ratio}"
+        );
         assert!(r.daily.dre_atm > 0.0);
+        assert!((ratio / disort_ratio - 1.0).abs() < 0.25, "albedo {albedo}");
         ratios.push(ratio);
     }
-    assert!((ratios[0] / disort_ratio - 1.0).abs() < 0.15);
     assert!(ratios[1] > ratios[0]);
 }
 
-/// (c) Common practice (brief §3): the solar constant is about 1361–1367 W m⁻², and Rayleigh
+/// An absorbing aerosol lifted to 3–5 km over a brighter surface (ω 0.85, AOD 0.3, albedo
+/// 0.15, gases on) against the same aerosol in 0–2 km, in DISORT and in ours: DISORT gives
+/// ΔF_TOA −2.67 against −3.18 W m⁻² (the lifted layer darkens more of the scattering air
+/// below it: less negative), ours −3.44 against −3.85; ours must show the same sign of the
+/// change, ΔF_TOA within the bound of `broadband_daily_forcing_agrees_with_disort` (7 % +
+/// 0.2 % of the incident flux; measured 0.76 W m⁻²) and ΔF_SFC within 10 % (measured
+/// −23.42 against −24.65, 5 %). It would catch the aerosol placed in the wrong layer of the
+/// three-layer column.
+#[test]
+fn elevated_layer_against_disort() {
+    let low = Broadband::find(0.85, 0.7, 0.3, 0.15, true, false);
+    let high = Broadband::find(0.85, 0.7, 0.3, 0.15, true, true);
+    let (ours_low, ours_high) = (low.ours().daily, high.ours().daily);
+    println!(
+        "ΔF_TOA 0–2 km: ours {:.3} DISORT {:.3}; 3–5 km: ours {:.3} DISORT {:.3}; \
+         ΔF_SFC 3–5 km: ours {:.3} DISORT {:.3}",
+        ours_low.dre_toa,
+        low.dre_toa,
+        ours_high.dre_toa,
+        high.dre_toa,
+        ours_high.dre_sfc,
+        high.dre_sfc
+    );
+    assert!(high.dre_toa > low.dre_toa);
+    assert!(ours_high.dre_toa > ours_low.dre_toa);
+    let bound = 0.07 * high.dre_toa.abs() + 0.002 * high.toa_down;
+    assert!((ours_high.dre_toa - high.dre_toa).abs() < bound);
+    assert!((ours_high.dre_sfc / high.dre_sfc - 1.0).abs() < 0.10);
+}
+
+/// (c) Common practice: the solar constant is about 1361–1367 W m⁻², and Rayleigh
 /// optical depth falls about as λ⁻⁴. The default incident flux at TOA with the sun overhead
 /// and no distance factor is the solar constant 1361 W m⁻² (Kopp & Lean 2011); the G173
 /// file itself holds 1347.9 W m⁻² (fixture `astm_g173_integral.csv`), 1.0–1.4 % below the

@@ -1,4 +1,4 @@
-//! Physical invariants of the solver and the driver as property tests (brief §3): energy
+//! Physical invariants of the solver and the driver as property tests: energy
 //! conservation at SSA = 1, zero effect at zero AOD, monotonic response to SSA and albedo,
 //! finite outputs for finite in-range input, no panic for any input.
 
@@ -185,22 +185,38 @@ proptest! {
         prop_assert!(lo.instantaneous.aerosol.sfc_net <= hi.instantaneous.aerosol.sfc_net + 1e-9);
     }
 
-    /// A brighter surface makes the TOA effect of the same aerosol less negative (more
-    /// positive), for surfaces up to albedo 0.7 (land, ocean, desert; not fresh snow).
+    /// A brighter surface makes the TOA effect of an absorbing aerosol (ω ≤ 0.9) less
+    /// negative (more positive), over the whole range of surfaces up to fresh snow (A 0.95).
     ///
-    /// Above that the response is not monotonic, in this model and in nature: with a
-    /// near-conservative aerosol (ω ≳ 0.97) and a high sun (μ₀ ≳ 0.9) the layer backscatters
-    /// the diffuse light coming up from the surface more than the direct beam coming down, so
-    /// its trapping term (1 − A)(A·R_diffuse − R_direct) dominates and shrinks as A → 1
-    /// (measured with `hazebook grid`: the TOA effect first decreases at A ≈ 0.8–0.95 for
-    /// μ₀ = 0.95 and ω ≥ 0.97, never for μ₀ ≤ 0.5 or ω ≤ 0.9). The thin-layer formula of
-    /// Haywood & Shine (1995), monotonic in A, ignores that difference (common practice).
+    /// Where the property holds is taken from DISORT, not from this model
+    /// (`albedo_response_against_disort` in `tests/physics_disort.rs`): DISORT's TOA effect
+    /// rises with A in every case up to A = 0.6, and over bright surfaces (A 0.6–0.95) it
+    /// falls only for near-conservative aerosol (ω ≥ 0.95) under a high sun (μ0 ≥ 0.6) —
+    /// the layer then reflects the light coming up from the surface back down more than it
+    /// reflects the beam — never for ω = 0.85. Hence two properties: this one for ω ≤ 0.9
+    /// at every sun, and `monotonic_in_albedo_under_a_low_sun` for any ω.
     #[test]
     fn monotonic_in_albedo(
-        mu0 in 0.05f64..=1.0, aod in 0.01f64..2.0, g in 0.3f64..0.85, ssa in 0.6f64..=1.0,
-        a_lo in 0.0f64..0.5, step in 0.001f64..0.2,
+        mu0 in 0.05f64..=1.0, aod in 0.01f64..2.0, g in 0.3f64..0.85, ssa in 0.6f64..=0.9,
+        a_lo in 0.0f64..0.95, step in 0.001f64..0.3,
     ) {
-        let a_hi = (a_lo + step).min(0.7);
+        let a_hi = (a_lo + step).min(0.95);
+        let s = fixed(mu0);
+        let ctx = Context::new(&s);
+        let lo = compute_observation(&observation(0, 40.0, 0.0, aod, 1.0, ssa, g, a_lo), &s, &ctx);
+        let hi = compute_observation(&observation(0, 40.0, 0.0, aod, 1.0, ssa, g, a_hi), &s, &ctx);
+        prop_assert!(hi.instantaneous.dre_toa >= lo.instantaneous.dre_toa - 1e-9);
+    }
+
+    /// Under a low sun (μ0 ≤ 0.3) a brighter surface makes the TOA effect less negative for
+    /// any aerosol, ω up to 1, up to A 0.95: DISORT shows no fall at μ0 = 0.3 over bright
+    /// surfaces (see `monotonic_in_albedo`).
+    #[test]
+    fn monotonic_in_albedo_under_a_low_sun(
+        mu0 in 0.05f64..=0.3, aod in 0.01f64..2.0, g in 0.3f64..0.85, ssa in 0.6f64..=1.0,
+        a_lo in 0.0f64..0.95, step in 0.001f64..0.3,
+    ) {
+        let a_hi = (a_lo + step).min(0.95);
         let s = fixed(mu0);
         let ctx = Context::new(&s);
         let lo = compute_observation(&observation(0, 40.0, 0.0, aod, 1.0, ssa, g, a_lo), &s, &ctx);
@@ -237,7 +253,8 @@ proptest! {
         prop_assert!(all_finite(&r), "{r:?}");
     }
 
-    /// No panic for any input at all, NaN and infinities included.
+    /// No panic for any input at all, NaN and infinities included; a NaN AOD or optical depth
+    /// comes out as NaN.
     #[test]
     fn no_panic_for_any_input(
         x in prop::collection::vec(prop_oneof![any::<f64>(), Just(f64::NAN), Just(f64::INFINITY), Just(-0.0)], 16),
@@ -262,7 +279,74 @@ proptest! {
             diurnal_nodes: nodes,
             ..Settings::default()
         };
-        let _ = compute_observation(&o, &s, &Context::new(&s));
-        let _ = solve_layer(LayerOptics { tau: x[0], ssa: x[1], g: x[2] }, x[3], c);
+        let r = compute_observation(&o, &s, &Context::new(&s));
+        // A NaN AOD on a sunlit day is a NaN effect, never a number.
+        if x[2].is_nan() && r.daily.clean.toa_down > 0.0 {
+            prop_assert!(r.daily.dre_toa.is_nan() && r.daily.dre_sfc.is_nan(), "{r:?}");
+        }
+        let l = solve_layer(LayerOptics { tau: x[0], ssa: x[1], g: x[2] }, x[3], c);
+        if x[0].is_nan() && x[3] > 0.0 {
+            prop_assert!(l.direct.reflectance.is_nan() && l.diffuse.transmittance.is_nan(), "{l:?}");
+        }
+    }
+}
+
+/// The shrunk counterexample proptest once found for `monotonic_in_ssa` with the plain
+/// Eddington closure (its seed is gone from the regression file: the property no longer
+/// draws that closure, so the seed no longer replays the case). Kept as a plain test of
+/// why the property is restricted to delta-scaled closures: at μ0 = 0.983, g = 0.847
+/// (g μ0 > 2/3, so Eddington's beam backscatter γ3 < 0; Meador & Weaver 1980, Table 1)
+/// raising ω from 0.5 to 0.501 makes Eddington's TOA effect less negative, while
+/// delta-Eddington's becomes more negative as it should.
+#[test]
+fn plain_eddington_breaks_ssa_monotonicity_where_delta_scaling_holds() {
+    let effect = |c: Closure, ssa: f64| {
+        let s = Settings {
+            closure: c,
+            ..fixed(0.983_273_796_991_941_6)
+        };
+        let o = observation(0, 40.0, 0.0, 0.01, 1.0, ssa, 0.846_503_620_622_696_2, 0.0);
+        compute_observation(&o, &s, &Context::new(&s))
+            .instantaneous
+            .dre_toa
+    };
+    let (lo, hi) = (0.5, 0.501);
+    assert!(effect(Closure::Eddington, hi) > effect(Closure::Eddington, lo));
+    assert!(effect(Closure::DeltaEddington, hi) < effect(Closure::DeltaEddington, lo));
+}
+
+/// A NaN in any optical or surface input of a sunlit row comes out as NaN in the effect,
+/// instantaneous and 24-hour, never as a plausible number (the reader rejects such rows
+/// before they get here; this guards the physics on its own). It would catch a NaN
+/// swallowed by `f64::max`/`min` or a comparison on the way (as a NaN depth once was in the
+/// two-stream solver).
+#[test]
+fn nan_inputs_propagate_to_the_effect() {
+    let s = Settings::default();
+    let ctx = Context::new(&s);
+    let noon = || observation(12 * 60, 40.0, 0.0, 0.3, 1.2, 0.9, 0.7, 0.2);
+    type Setter = fn(&mut Observation);
+    let setters: [(&str, Setter); 6] = [
+        ("aod", |o| o.aod = f64::NAN),
+        ("angstrom", |o| o.angstrom = f64::NAN),
+        ("aod wavelength", |o| o.aod_wavelength_nm = f64::NAN),
+        ("ssa", |o| o.ssa[0].value = f64::NAN),
+        ("g", |o| o.asymmetry[0].value = f64::NAN),
+        ("albedo", |o| {
+            o.surface = Surface::Lambertian { albedo: f64::NAN }
+        }),
+    ];
+    let good = compute_observation(&noon(), &s, &ctx);
+    assert!(good.instantaneous.dre_toa.is_finite() && !good.flags.sun_below_horizon);
+    for (what, set) in setters {
+        let mut o = noon();
+        set(&mut o);
+        let r = compute_observation(&o, &s, &ctx);
+        for e in [r.instantaneous, r.daily] {
+            assert!(
+                e.dre_toa.is_nan() && e.dre_sfc.is_nan() && e.dre_atm.is_nan(),
+                "NaN {what}: {e:?}"
+            );
+        }
     }
 }

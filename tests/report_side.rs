@@ -19,7 +19,10 @@ fn csv_carries_full_precision() {
     let mut lines = text.lines();
     let header: Vec<&str> = lines.next().unwrap().split(',').collect();
     assert_eq!(header[0], "site");
-    let j = header.iter().position(|h| *h == "dre_toa_24h").unwrap();
+    let j = header
+        .iter()
+        .position(|h| *h == "dre_toa_24h [W m-2]")
+        .unwrap();
     let t = header.iter().position(|h| *h == "time_utc").unwrap();
     let first: Vec<&str> = lines.next().unwrap().split(',').collect();
     let v: f64 = first[j].parse().unwrap();

@@ -26,11 +26,25 @@ impl Cell<'_> {
         match self {
             Cell::Empty => "an empty cell".to_string(),
             Cell::Number(v) => format_number(*v),
-            Cell::Text(s) => format!("\"{}\"", s.trim()),
+            Cell::Text(s) => format!("\"{}\"", clip(s.trim())),
             Cell::Bool(b) => if *b { "TRUE" } else { "FALSE" }.to_string(),
             Cell::Excel(d) => match d.as_datetime() {
                 Some(t) if d.is_datetime() => t.format("%Y-%m-%d %H:%M:%S").to_string(),
-                _ => format!("duration {}", format_number(d.as_f64())),
+                _ => {
+                    let secs = (d.as_f64() * 86_400.0).round();
+                    if secs.is_finite() && secs.abs() < 1e12 {
+                        let s = secs.abs() as i64;
+                        let sign = if secs < 0.0 { "-" } else { "" };
+                        format!(
+                            "duration {sign}{}:{:02}:{:02}",
+                            s / 3600,
+                            s / 60 % 60,
+                            s % 60
+                        )
+                    } else {
+                        format!("duration {}", format_number(d.as_f64()))
+                    }
+                }
             },
             Cell::EpochMs(ms) => chrono::DateTime::from_timestamp_millis(*ms)
                 .map(|t| t.format("%Y-%m-%d %H:%M:%S").to_string())
@@ -53,11 +67,51 @@ impl Cell<'_> {
     }
 }
 
+/// Most characters a cell may hold: the limit of a worksheet cell (Microsoft, "Excel
+/// specifications and limits": 32,767 characters), which the report writer also enforces.
+/// A longer text in a column that is read rejects its row.
+pub(crate) const MAX_CELL_CHARS: usize = 32_767;
+
+/// Characters of a cell value shown in a message; longer values are cut and end in `…`.
+pub(crate) const SHOWN_CHARS: usize = 60;
+
+/// A text as shown in a message: its first [`SHOWN_CHARS`] characters and `…` when longer.
+pub(crate) fn clip(s: &str) -> std::borrow::Cow<'_, str> {
+    match s.char_indices().nth(SHOWN_CHARS) {
+        None => std::borrow::Cow::Borrowed(s),
+        Some((i, _)) => std::borrow::Cow::Owned(format!("{}…", &s[..i])),
+    }
+}
+
+/// Characters of a text when it is longer than [`MAX_CELL_CHARS`], else `None` (cheap for
+/// short texts: a text of at most that many bytes has at most that many characters).
+pub(crate) fn too_long(s: &str) -> Option<usize> {
+    if s.len() <= MAX_CELL_CHARS {
+        return None;
+    }
+    let n = s.chars().count();
+    (n > MAX_CELL_CHARS).then_some(n)
+}
+
 /// Text of a number for messages: integers as such, others to 10 significant digits
 /// (so 91.8 / 100 reads 0.918, not 0.9179999999999999).
 pub(crate) fn format_number(v: f64) -> String {
     if v.is_finite() && v == v.trunc() && v.abs() < 1e15 {
         format!("{}", v as i64)
+    } else if v.is_finite() && (v.abs() >= 1e15 || v.abs() < 1e-6) && v != 0.0 {
+        // Very large or small: scientific, 10 significant digits (1e308, not 309 digits).
+        let s = format!("{v:.9e}");
+        match s.split_once('e') {
+            Some((m, e)) => {
+                let m = if m.contains('.') {
+                    m.trim_end_matches('0').trim_end_matches('.')
+                } else {
+                    m
+                };
+                format!("{m}e{e}")
+            }
+            None => s,
+        }
     } else if v.is_finite() && v != 0.0 {
         let digits = (9 - v.abs().log10().floor() as i32).clamp(0, 17) as usize;
         let s = format!("{v:.digits$}");
@@ -114,6 +168,8 @@ pub(crate) struct FrameGrid {
     pub header_line: u32,
     /// Line number of each data row (1-based).
     pub lines: Vec<u32>,
+    /// What reading the file noticed (lines with extra fields).
+    pub warnings: Vec<String>,
 }
 
 /// A sheet's cells. Row 0 of the grid is the first used row of the sheet.
@@ -207,6 +263,62 @@ impl Grid {
                 }
             }
         }
+    }
+
+    /// Fill the empty cells of column `c` (grid index), from grid row `from` on, that lie in
+    /// a merged range with the value of the range's top-left cell, as a spreadsheet shows
+    /// them. `merges` are absolute (row, column) ranges. Returns the ranges that filled a
+    /// cell, as A1 text. Only workbook grids have merges.
+    pub(crate) fn fill_merged(
+        &mut self,
+        c: usize,
+        from: usize,
+        merges: &[calamine::Dimensions],
+    ) -> Vec<String> {
+        let Grid::Range(range) = self else {
+            return Vec::new();
+        };
+        let (Some(start), Some(end)) = (range.start(), range.end()) else {
+            return Vec::new();
+        };
+        let col = start.1 + c as u32;
+        let first_row = start.0 + from as u32;
+        // Overlapping or repeated ranges are not valid; a budget keeps hostile lists cheap.
+        let mut budget = 4 * (end.0 - start.0 + 1) as u64 + 1024;
+        let mut filled = Vec::new();
+        for d in merges {
+            if !(d.start.1 <= col && col <= d.end.1) || d.end.0 <= d.start.0 {
+                continue;
+            }
+            let value = match range.get_value(d.start) {
+                Some(v) if *v != Data::Empty => v.clone(),
+                _ => continue,
+            };
+            let mut any = false;
+            for row in d.start.0.max(first_row)..=d.end.0.min(end.0) {
+                if budget == 0 {
+                    return filled;
+                }
+                budget -= 1;
+                if (row, col) == d.start {
+                    continue;
+                }
+                if matches!(range.get_value((row, col)), None | Some(Data::Empty)) {
+                    range.set_value((row, col), value.clone());
+                    any = true;
+                }
+            }
+            if any {
+                filled.push(format!(
+                    "{}{}:{}{}",
+                    column_letter(d.start.1),
+                    d.start.0 + 1,
+                    column_letter(d.end.1),
+                    d.end.0 + 1
+                ));
+            }
+        }
+        filled
     }
 
     /// True when every cell of grid row `r` is empty or blank text.

@@ -9,6 +9,7 @@ pub(crate) enum Kind {
     Time,
     Date,
     Site,
+    SiteName,
     Latitude,
     Longitude,
     Aod,
@@ -32,6 +33,7 @@ impl Kind {
             Kind::Time => "time",
             Kind::Date => "date",
             Kind::Site => "site",
+            Kind::SiteName => "site_name",
             Kind::Latitude => "latitude",
             Kind::Longitude => "longitude",
             Kind::Aod => "aod",
@@ -67,6 +69,7 @@ impl Kind {
             Kind::Time,
             Kind::Date,
             Kind::Site,
+            Kind::SiteName,
             Kind::Latitude,
             Kind::Longitude,
             Kind::Aod,
@@ -85,8 +88,16 @@ impl Kind {
     }
 }
 
-/// Names (normalised: lower case, words separated by one space) that mean each quantity.
-/// The names of the trade; common practice.
+/// The header table: names (normalised: lower case, words separated by one space, Greek and
+/// accented letters spelled out, so `Ångström exp.` is `angstrom exp` and `α` is `alpha`) that
+/// mean each quantity. A header is a name of this table, optionally with a wavelength
+/// (`aod 500`, `alpha 440 870`), a unit (`ozone du`) or a trailing symbol (`asymmetry factor
+/// g`). The spellings and abbreviations of the trade; common practice.
+///
+/// To recognise a new spelling, add it to its quantity's list and add a case for it to
+/// `tests/ingest_headers.rs` (a test fails for a spelling without one). A new quantity is a
+/// new [`Kind`] with its own row. Only names that mean the quantity belong here: no guessing
+/// from words that merely occur in it.
 const ALIASES: &[(Kind, &[&str])] = &[
     (
         Kind::Time,
@@ -126,11 +137,35 @@ const ALIASES: &[(Kind, &[&str])] = &[
         &[
             "site",
             "station",
+            "stn",
+            "stid",
+            "st id",
+            "site id",
+            "site code",
+            "station id",
+            "station code",
+            "stn id",
+            "stn code",
+            "station number",
+            "station no",
+            "location",
+            "location id",
+            "location code",
+            "platform",
+        ],
+    ),
+    (
+        Kind::SiteName,
+        &[
+            "name",
             "site name",
             "station name",
-            "location",
-            "site id",
-            "station id",
+            "stn name",
+            "location name",
+            "full name",
+            "long name",
+            "site full name",
+            "station full name",
         ],
     ),
     (
@@ -141,6 +176,7 @@ const ALIASES: &[(Kind, &[&str])] = &[
             "lat deg",
             "latitude deg",
             "site latitude",
+            "station latitude",
         ],
     ),
     (
@@ -153,6 +189,7 @@ const ALIASES: &[(Kind, &[&str])] = &[
             "lon deg",
             "longitude deg",
             "site longitude",
+            "station longitude",
         ],
     ),
     (
@@ -175,11 +212,19 @@ const ALIASES: &[(Kind, &[&str])] = &[
         &[
             "angstrom",
             "angstrom exponent",
-            "alpha",
-            "ae",
-            "angstrom alpha",
+            "angstrom exp",
+            "angstrom coefficient",
+            "angstrom coeff",
+            "angstrom coef",
             "angstrom parameter",
+            "angstrom alpha",
+            "angstroem",
+            "angstroem exponent",
+            "alpha",
+            "alpha angstrom",
+            "ae",
             "extinction angstrom exponent",
+            "aod angstrom exponent",
         ],
     ),
     (
@@ -213,9 +258,14 @@ const ALIASES: &[(Kind, &[&str])] = &[
             "albedo",
             "surface albedo",
             "sfc albedo",
+            "sfc alb",
             "alb",
             "broadband albedo",
+            "broadband surface albedo",
+            "albedo broadband",
+            "surface albedo broadband",
             "ground albedo",
+            "lambertian albedo",
         ],
     ),
     (
@@ -235,8 +285,14 @@ const ALIASES: &[(Kind, &[&str])] = &[
             "o3",
             "total ozone",
             "ozone column",
+            "column ozone",
+            "total column ozone",
+            "total ozone column",
             "toc",
+            "tco",
+            "tco3",
             "o3 column",
+            "total o3",
         ],
     ),
     (
@@ -244,6 +300,7 @@ const ALIASES: &[(Kind, &[&str])] = &[
         &[
             "pw",
             "pwv",
+            "pwat",
             "water",
             "precipitable water",
             "water vapour",
@@ -251,6 +308,14 @@ const ALIASES: &[(Kind, &[&str])] = &[
             "wv",
             "precipitable water vapour",
             "precipitable water vapor",
+            "water vapour column",
+            "water vapor column",
+            "column water vapour",
+            "column water vapor",
+            "total column water vapour",
+            "total column water vapor",
+            "tcwv",
+            "cwv",
             "iwv",
             "h2o",
         ],
@@ -261,10 +326,15 @@ const ALIASES: &[(Kind, &[&str])] = &[
             "pressure",
             "surface pressure",
             "p",
+            "ps",
             "psfc",
+            "p sfc",
             "sfc pressure",
             "station pressure",
+            "air pressure",
+            "barometric pressure",
             "pres",
+            "press",
         ],
     ),
     (
@@ -275,6 +345,8 @@ const ALIASES: &[(Kind, &[&str])] = &[
             "alt",
             "station altitude",
             "site altitude",
+            "station elevation",
+            "site elevation",
             "height asl",
             "elev",
         ],
@@ -285,10 +357,14 @@ const ALIASES: &[(Kind, &[&str])] = &[
             "layer top",
             "aerosol layer top",
             "aerosol top",
+            "aerosol layer height",
+            "alh",
             "blh",
             "pbl height",
             "pblh",
             "mixing height",
+            "mixing layer height",
+            "mlh",
             "boundary layer height",
             "layer height",
             "top",
@@ -308,10 +384,17 @@ const ALIASES: &[(Kind, &[&str])] = &[
     ),
 ];
 
+/// Every (quantity, spelling) of the header table, for documentation and tests.
+pub(crate) fn spellings() -> impl Iterator<Item = (Kind, &'static str)> {
+    ALIASES
+        .iter()
+        .flat_map(|(k, names)| names.iter().map(move |n| (*k, *n)))
+}
+
 /// Unit words that may trail a header (`ozone du`, `pw cm`, `time utc`).
 const UNIT_WORDS: &[&str] = &[
     "du", "cm", "mm", "hpa", "mb", "mbar", "kpa", "pa", "m", "km", "deg", "degrees", "degree", "n",
-    "e", "h", "hours", "unitless", "1", "percent", "kg m2", "atm cm",
+    "e", "h", "hours", "unitless", "1", "percent", "kg m2", "atm cm", "deg n", "deg e",
 ];
 
 /// A header understood as a quantity.
@@ -322,6 +405,41 @@ pub(crate) struct HeaderMeaning {
     pub wavelength_nm: Option<f64>,
     /// Unit written in the header (normalised, e.g. `mm`, `du`, `utc`), or empty.
     pub unit: String,
+    /// For the Ångström exponent: the wavelength pair it spans (`alpha 440-870`) [nm].
+    pub pair_nm: Option<(f64, f64)>,
+}
+
+/// The wavelength pair of an Ångström exponent from its wavelengths (the first two, in
+/// ascending order), if two distinct ones are given.
+fn pair_of(kind: Kind, wavelengths: &[f64]) -> Option<(f64, f64)> {
+    match (kind, wavelengths) {
+        (Kind::Angstrom, [a, b, ..]) if a != b => Some((a.min(*b), a.max(*b))),
+        _ => None,
+    }
+}
+
+/// A wavelength pair written in a units-row cell (`440–870 nm`, `440/870`, `(440-870) [-]`)
+/// and what remains of the cell once it is taken out (normalised; empty for `-`).
+pub(crate) fn units_wavelength_pair(text: &str) -> Option<((f64, f64), String)> {
+    let toks = tokens(text);
+    let mut nums: Vec<f64> = Vec::new();
+    let mut rest: Vec<String> = Vec::new();
+    for t in toks {
+        if is_number_token(&t) {
+            let v: f64 = t.parse().ok()?;
+            if (250.0..=4000.0).contains(&v) {
+                nums.push(v);
+                continue;
+            }
+        }
+        if t != "nm" {
+            rest.push(t);
+        }
+    }
+    match nums.as_slice() {
+        [a, b] if a != b => Some(((a.min(*b), a.max(*b)), rest.join(" "))),
+        _ => None,
+    }
 }
 
 /// Normalise text: lower case, Greek and accented letters spelled out, words split at
@@ -450,6 +568,7 @@ pub(crate) fn parse_header(text: &str) -> Option<HeaderMeaning> {
             kind,
             wavelength_nm: wavelengths.first().copied(),
             unit,
+            pair_nm: pair_of(kind, &wavelengths),
         });
     }
     for n_unit in (1..=2).rev() {
@@ -462,6 +581,7 @@ pub(crate) fn parse_header(text: &str) -> Option<HeaderMeaning> {
                         kind,
                         wavelength_nm: wavelengths.first().copied(),
                         unit: u,
+                        pair_nm: pair_of(kind, &wavelengths),
                     });
                 }
             }
@@ -470,19 +590,34 @@ pub(crate) fn parse_header(text: &str) -> Option<HeaderMeaning> {
     None
 }
 
+/// The header table with each name split as [`tokens`] splits a header (`o3` → `o 3`), so
+/// that names holding digits match.
+fn normalised_aliases() -> &'static [(Kind, Vec<String>)] {
+    static TABLE: std::sync::LazyLock<Vec<(Kind, Vec<String>)>> = std::sync::LazyLock::new(|| {
+        ALIASES
+            .iter()
+            .map(|(k, names)| (*k, names.iter().map(|n| tokens(n).join(" ")).collect()))
+            .collect()
+    });
+    &TABLE
+}
+
 fn lookup(name: &str) -> Option<Kind> {
-    if let Some((k, _)) = ALIASES.iter().find(|(_, names)| names.contains(&name)) {
-        return Some(*k);
+    let find = |name: &str| {
+        normalised_aliases()
+            .iter()
+            .find(|(_, names)| names.iter().any(|n| n == name))
+            .map(|(k, _)| *k)
+    };
+    if let Some(k) = find(name) {
+        return Some(k);
     }
     // A name followed by its symbol: `asymmetry factor g`, `angstrom exponent alpha`,
     // `single scattering albedo omega`.
     let (head, last) = name.rsplit_once(' ')?;
     const SYMBOLS: &[&str] = &["g", "a", "w", "alpha", "omega", "tau", "ae", "ssa", "aod"];
     if SYMBOLS.contains(&last) {
-        return ALIASES
-            .iter()
-            .find(|(_, names)| names.contains(&head))
-            .map(|(k, _)| *k);
+        return find(head);
     }
     None
 }
@@ -534,6 +669,102 @@ pub(crate) fn closest_header(kind: Kind, headers: &[String]) -> Option<&str> {
     best.map(|(_, h)| h)
 }
 
+/// Words of the header table too common to tie a header to one quantity on their own.
+const COMMON_WORDS: &[&str] = &[
+    "total",
+    "column",
+    "surface",
+    "sfc",
+    "site",
+    "station",
+    "stn",
+    "time",
+    "factor",
+    "parameter",
+    "layer",
+    "height",
+    "top",
+    "coefficient",
+    "coeff",
+    "coef",
+    "id",
+    "code",
+    "no",
+    "number",
+    "name",
+    "full",
+    "long",
+    "local",
+    "utc",
+    "date",
+    "day",
+    "obs",
+    "measurement",
+    "sample",
+    "and",
+    "deg",
+    "type",
+    "land",
+    "ocean",
+    "sea",
+    "broadband",
+    "aerosol",
+    "offset",
+    "aer",
+    "st",
+];
+
+/// The header words that carry meaning (no wavelengths, no `nm`, no one-letter words).
+fn meaningful_words(header: &str) -> Vec<String> {
+    tokens(header)
+        .into_iter()
+        .filter(|t| !is_number_token(t) && t != "nm" && t.chars().count() >= 2)
+        .collect()
+}
+
+/// True when an unrecognised header looks like a spelling of `kind`: it shares a distinctive
+/// word with one of the quantity's names, or a word of it is a close spelling (edit distance
+/// ≤ 2, or a prefix of four letters or more) of such a word. Used only to *suggest* a
+/// mapping, never to map.
+pub(crate) fn resembles(kind: Kind, header: &str) -> bool {
+    let Some(names) = ALIASES.iter().find(|(k, _)| *k == kind).map(|(_, n)| *n) else {
+        return false;
+    };
+    let distinctive: Vec<&str> = names
+        .iter()
+        .flat_map(|n| n.split(' '))
+        .filter(|w| w.len() >= 2 && !COMMON_WORDS.contains(w))
+        .collect();
+    meaningful_words(header).iter().any(|t| {
+        !COMMON_WORDS.contains(&t.as_str())
+            && distinctive.iter().any(|w| {
+                t == w
+                    || (t.len() >= 4
+                        && w.len() >= 5
+                        && (w.starts_with(t.as_str())
+                            || t.starts_with(w)
+                            || edit_distance(t, w) <= 2))
+            })
+    })
+}
+
+/// Why a header names no quantity, for the column accounting: a known name followed by other
+/// words (`aod440 (Oct, raw)`) is said as such; anything else is not a quantity hazebook reads.
+pub(crate) fn unrecognised_reason(header: &str) -> String {
+    let words = meaningful_words(header);
+    for n in (1..words.len()).rev() {
+        let head = words[..n].join(" ");
+        if let Some(kind) = lookup(&head) {
+            return format!(
+                "reads as {} followed by other words (\"{}\"), so it may not hold the measured value: not read (map it in the job file if it is)",
+                kind.name(),
+                words[n..].join(" ")
+            );
+        }
+    }
+    "not a quantity hazebook reads".to_string()
+}
+
 /// How many distinct quantities grid row `r` names, and whether measurements are among them.
 pub(crate) fn header_score(grid: &Grid, r: usize) -> (usize, bool, bool) {
     let mut kinds: Vec<Kind> = Vec::new();
@@ -546,7 +777,7 @@ pub(crate) fn header_score(grid: &Grid, r: usize) -> (usize, bool, bool) {
         }
     }
     let has_aod = kinds.contains(&Kind::Aod) || kinds.contains(&Kind::Ssa);
-    let is_site_table = kinds.contains(&Kind::Site)
+    let is_site_table = (kinds.contains(&Kind::Site) || kinds.contains(&Kind::SiteName))
         && (kinds.contains(&Kind::Latitude)
             || kinds.contains(&Kind::Longitude)
             || kinds.contains(&Kind::Altitude)

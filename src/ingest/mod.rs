@@ -14,6 +14,12 @@
 //! separator-insensitively, with the wavelength read from them (`aod_500`, `AOD 440 nm`,
 //! `SSA(675)`, `asymmetry 870nm`).
 //!
+//! Every header column is accounted for: read ([`Ingested::mapping`],
+//! [`Ingested::site_columns`]) or ignored with the reason ([`Ingested::ignored`]); see
+//! [`Ingested::column_accounts`]. Every row gets a site: from its site column (joined with the
+//! site table; full names become [`Ingested::site_labels`]), else by one place, fixed places
+//! or a moving platform, as [`Ingested::site_rules`] says.
+//!
 //! # Required and optional quantities
 //! Required: time, AOD, SSA, g, and a location (latitude and longitude in the row, or a site
 //! column whose sites the site sheet or the job file locates). The Ångström exponent comes from
@@ -32,10 +38,13 @@
 //! values as measured: `aod_<λ>nm`, `ssa_<λ>nm`, `asymmetry_<λ>nm` (null where a row or file
 //! has none).
 
+mod accounting;
 mod cells;
 mod detect;
+mod metadata;
 mod read;
 mod resolve;
+mod sites;
 mod sources;
 mod time;
 mod types;
@@ -45,8 +54,113 @@ use std::path::Path;
 
 use polars::prelude::*;
 
+pub use accounting::{ColumnAccount, strict_problems};
+pub use read::{NO_TIME_OF_DAY, blank_instantaneous, lacks_time_of_day};
 pub use resolve::{fit_angstrom, interpolate_ln_wavelength};
+pub use sites::{SITE_TOLERANCE_KM, distance_km};
+pub use validate::check_job_value;
+
+/// Move the rows whose radiative transfer gave no finite result (a solar position that
+/// cannot be computed, a non-finite flux) from the computed rows to the rejected ones, so
+/// that no row is reported with empty forcing as if it were computed. `results` are aligned
+/// with `ing.observations`; returns the results of the rows kept.
+pub fn reject_uncomputable(
+    ing: &mut Ingested,
+    results: Vec<crate::physics::ObservationResult>,
+    settings: &crate::physics::Settings,
+) -> Vec<crate::physics::ObservationResult> {
+    let faults: Vec<Option<&'static str>> = results
+        .iter()
+        .enumerate()
+        .map(|(k, r)| {
+            let i = &r.instantaneous;
+            let d = &r.daily;
+            // A row placed by its date alone has its instantaneous part left empty on
+            // purpose (`read::blank_instantaneous`); only its 24-hour values must be finite.
+            let date_only = ing
+                .row_warnings
+                .get(k)
+                .is_some_and(|w| lacks_time_of_day(w));
+            if date_only {
+                if !r.aod_550.is_finite() {
+                    Some("AOD(550 nm) is not a finite number")
+                } else if settings.daily_mean
+                    && ![d.dre_toa, d.dre_sfc, d.dre_atm]
+                        .iter()
+                        .all(|x| x.is_finite())
+                {
+                    Some("the 24-hour mean radiative effect is not a finite number")
+                } else {
+                    None
+                }
+            } else if !r.solar_zenith_deg.is_finite() {
+                Some("the solar position cannot be computed for this time and place")
+            } else if !r.aod_550.is_finite() {
+                Some("AOD(550 nm) is not a finite number")
+            } else if ![i.dre_toa, i.dre_sfc, i.dre_atm]
+                .iter()
+                .all(|x| x.is_finite())
+            {
+                Some("the instantaneous radiative effect is not a finite number")
+            } else if settings.daily_mean
+                && ![d.dre_toa, d.dre_sfc, d.dre_atm]
+                    .iter()
+                    .all(|x| x.is_finite())
+            {
+                Some("the 24-hour mean radiative effect is not a finite number")
+            } else {
+                None
+            }
+        })
+        .collect();
+    if faults.iter().all(Option::is_none) || faults.len() != ing.observations.len() {
+        return results;
+    }
+    let keep: Vec<bool> = faults.iter().map(Option::is_none).collect();
+    for (k, why) in faults.iter().enumerate() {
+        if let Some(why) = why {
+            let o = &ing.origins[k];
+            ing.rejected.push(Rejection {
+                file: o.file.clone(),
+                sheet: o.sheet.clone(),
+                row: o.row,
+                cell: String::new(),
+                column: String::new(),
+                value: String::new(),
+                reason: format!("{why}; the row cannot be computed"),
+            });
+        }
+    }
+    fn pick<T>(v: Vec<T>, keep: &[bool]) -> Vec<T> {
+        v.into_iter()
+            .zip(keep)
+            .filter(|(_, k)| **k)
+            .map(|(x, _)| x)
+            .collect()
+    }
+    let removed = keep.iter().filter(|k| !**k).count();
+    if ing.frame.height() == keep.len()
+        && let Ok(f) = ing
+            .frame
+            .filter(&BooleanChunked::from_slice("keep".into(), &keep))
+    {
+        ing.frame = f;
+    }
+    ing.sites = pick(std::mem::take(&mut ing.sites), &keep);
+    ing.origins = pick(std::mem::take(&mut ing.origins), &keep);
+    ing.observations = pick(std::mem::take(&mut ing.observations), &keep);
+    ing.row_warnings = pick(std::mem::take(&mut ing.row_warnings), &keep);
+    ing.counts.computed -= removed;
+    ing.counts.rejected += removed;
+    pick(results, &keep)
+}
+
+/// A site name as sites are compared (case and runs of blanks do not matter).
+pub fn site_name_key(name: &str) -> String {
+    resolve::site_key(name).into_owned()
+}
 pub use types::*;
+pub use validate::check_observation;
 
 use cells::FillValues;
 use read::{Rows, SheetContext, place};
@@ -56,6 +170,36 @@ use sources::FileKind;
 /// Wavelength as used in names: `500`, `532.5`.
 pub(crate) fn format_wavelength(w: f64) -> String {
     cells::format_number((w * 10.0).round() / 10.0)
+}
+
+/// A header as header detection reads it.
+#[derive(Debug, Clone, PartialEq)]
+pub struct HeaderReading {
+    /// Quantity, as the job file names it without wavelength: `aod`, `angstrom`, `site`.
+    pub quantity: &'static str,
+    /// Wavelength written in the header [nm].
+    pub wavelength_nm: Option<f64>,
+    /// For the Ångström exponent: the wavelength pair written in the header [nm].
+    pub wavelength_pair_nm: Option<(f64, f64)>,
+    /// Unit written in the header (normalised), or empty.
+    pub unit: String,
+}
+
+/// How header detection reads one header text (`AOD 500 nm`, `Ångström exp. 440/870`,
+/// `stn`); `None` when it names no quantity.
+pub fn read_header(text: &str) -> Option<HeaderReading> {
+    detect::parse_header(text).map(|m| HeaderReading {
+        quantity: m.kind.name(),
+        wavelength_nm: m.wavelength_nm,
+        wavelength_pair_nm: m.pair_nm,
+        unit: m.unit,
+    })
+}
+
+/// Every (quantity, spelling) of the header table, as normalised names (lower case, words
+/// separated by one space).
+pub fn header_spellings() -> Vec<(&'static str, &'static str)> {
+    detect::spellings().map(|(k, n)| (k.name(), n)).collect()
 }
 
 /// Read every input of `spec`.
@@ -69,6 +213,32 @@ pub(crate) fn format_wavelength(w: f64) -> String {
 /// required column is missing, the job file's mapping names no column, or the site table
 /// holds a bad value. Nothing is returned in part.
 pub fn read_inputs(spec: &InputSpec) -> Result<Ingested, IngestError> {
+    read_all(spec, &mut None)
+}
+
+/// What a workbook gives and lacks, for `hazebook init`: the inputs read as by
+/// [`read_inputs`], except that a missing required column does not stop the reading; each
+/// such problem is listed in [`Survey::missing`] (and the rows that need it are rejected).
+#[derive(Debug, Clone, Default)]
+pub struct Survey {
+    pub ingested: Ingested,
+    /// The messages of missing required columns (or locations), one per sheet.
+    pub missing: Vec<String>,
+}
+
+/// Survey the inputs of `spec` (see [`Survey`]).
+///
+/// Errors: as [`read_inputs`], except a missing required column.
+pub fn survey(spec: &InputSpec) -> Result<Survey, IngestError> {
+    let mut missing = Some(Vec::new());
+    let ingested = read_all(spec, &mut missing)?;
+    Ok(Survey {
+        ingested,
+        missing: missing.unwrap_or_default(),
+    })
+}
+
+fn read_all(spec: &InputSpec, missing: &mut Option<Vec<String>>) -> Result<Ingested, IngestError> {
     if spec.paths.is_empty() {
         return Err(IngestError::Layout {
             path: String::new(),
@@ -78,10 +248,65 @@ pub fn read_inputs(spec: &InputSpec) -> Result<Ingested, IngestError> {
     let fill = FillValues::new(&spec.fill_values);
     let mut rows = Rows::default();
     let mut out = Ingested::default();
-    for path in &spec.paths {
-        read_file(path, spec, &fill, &mut rows, &mut out).map_err(without_repeated_path)?;
+    let (paths, repeated) = distinct_paths(&spec.paths);
+    out.warnings.extend(repeated);
+    for path in paths {
+        read_file(path, spec, &fill, &mut rows, &mut out, missing)
+            .map_err(without_repeated_path)?;
     }
     finish(rows, out)
+}
+
+/// A missing required column stops the reading, unless a survey collects it.
+fn required(
+    result: Result<(), IngestError>,
+    missing: &mut Option<Vec<String>>,
+) -> Result<(), IngestError> {
+    match (result, missing) {
+        (Err(e), Some(list)) => {
+            list.push(without_repeated_path(e).to_string());
+            Ok(())
+        }
+        (r, _) => r,
+    }
+}
+
+/// The inputs with each file once (the same file named twice, by the same or another path,
+/// or matched by two patterns, would give false duplicates of all its rows), and a warning
+/// for each file named more than once.
+fn distinct_paths(paths: &[std::path::PathBuf]) -> (Vec<&Path>, Vec<String>) {
+    let mut keys: Vec<std::path::PathBuf> = Vec::with_capacity(paths.len());
+    let mut kept: Vec<&Path> = Vec::with_capacity(paths.len());
+    let mut extra: Vec<(usize, Vec<String>)> = Vec::new();
+    for p in paths {
+        let key = p.canonicalize().unwrap_or_else(|_| p.clone());
+        match keys.iter().position(|k| *k == key) {
+            Some(i) => match extra.iter_mut().find(|(j, _)| *j == i) {
+                Some((_, names)) => names.push(p.display().to_string()),
+                None => extra.push((i, vec![p.display().to_string()])),
+            },
+            None => {
+                keys.push(key);
+                kept.push(p.as_path());
+            }
+        }
+    }
+    let warnings = extra
+        .into_iter()
+        .map(|(i, names)| {
+            format!(
+                "{}: the file is listed {} times among the inputs (also as {}); it is read once",
+                kept[i].display(),
+                names.len() + 1,
+                names
+                    .iter()
+                    .map(|n| format!("\"{n}\""))
+                    .collect::<Vec<_>>()
+                    .join(", ")
+            )
+        })
+        .collect();
+    (kept, warnings)
 }
 
 fn read_file(
@@ -90,6 +315,7 @@ fn read_file(
     fill: &FillValues,
     rows: &mut Rows,
     out: &mut Ingested,
+    missing: &mut Option<Vec<String>>,
 ) -> Result<(), IngestError> {
     let file = path.display().to_string();
     let kind = sources::file_kind(path)?;
@@ -133,11 +359,12 @@ fn read_file(
                 }
             };
             let data_name = names[data_idx].clone();
-            let data_grid = match grids[data_idx].take() {
+            let mut data_grid = match grids[data_idx].take() {
                 Some(g) => g,
                 None => book.load(&data_name)?,
             };
-            let layout = read::data_layout(&data_grid, spec, &file, &data_name)?;
+            let mut layout = read::data_layout(&data_grid, spec, &file, &data_name)?;
+            fill_merged_sites(&mut book, &mut data_grid, &mut layout, &file, &data_name);
             // Site sheet.
             let mut sheet_sites = Vec::new();
             let site_idx = match &spec.site_sheet {
@@ -174,11 +401,59 @@ fn read_file(
                         place(&file, &names[i])
                     ),
                 })?;
-                sheet_sites = read::read_site_sheet(&g, header, fill, &file, &names[i])?;
+                let site_sheet = read::read_site_sheet(&g, header, fill, &file, &names[i])?;
+                sheet_sites = site_sheet.sites;
+                out.site_columns.extend(site_sheet.mapped);
+                out.ignored.extend(accounting::to_ignored_columns(
+                    &site_sheet.ignored,
+                    &file,
+                    &names[i],
+                    spec,
+                ));
                 sheets_read.push(names[i].clone());
             }
+            if site_idx.is_none() {
+                // One site per workbook: a key/value metadata sheet and lines above the header.
+                let mut kv = None;
+                for (i, n) in names.iter().enumerate() {
+                    if i == data_idx {
+                        continue;
+                    }
+                    if grids[i].is_none() {
+                        grids[i] = Some(book.load(n)?);
+                    }
+                    if let Some(g) = grids[i]
+                        .as_ref()
+                        .filter(|g| metadata::is_key_value_sheet(g))
+                    {
+                        kv = Some(metadata::read_key_value_sheet(g, fill, &file, n)?);
+                        sheets_read.push(n.clone());
+                        break;
+                    }
+                }
+                let lines = metadata::read_header_lines(
+                    &data_grid,
+                    layout.header_row,
+                    fill,
+                    &file,
+                    &data_name,
+                )?;
+                if let Some(meta) = metadata::combine(kv, lines, &file, &mut out.warnings) {
+                    if !meta.unused.is_empty() {
+                        out.warnings.push(format!(
+                            "{file}: metadata rows not used (no site quantity hazebook knows): {}",
+                            meta.unused.join(", ")
+                        ));
+                    }
+                    out.metadata.extend(meta.values.iter().cloned());
+                    sheet_sites.push(meta.info);
+                }
+            }
             let sites = SiteTable::merge(&sheet_sites, &spec.sites);
-            read::require_columns(&layout, &data_grid, &file, &data_name, &sites)?;
+            required(
+                read::require_columns(&layout, &data_grid, &file, &data_name, &sites),
+                missing,
+            )?;
             sheets_read.insert(0, data_name.clone());
             let ctx = SheetContext {
                 file: &file,
@@ -190,7 +465,7 @@ fn read_file(
                 sites: &sites,
                 spec,
             };
-            finish_sheet(&ctx, rows, out);
+            finish_sheet(&ctx, rows, out, site_idx.map(|i| names[i].as_str()));
         }
         FileKind::Csv | FileKind::Parquet => {
             let grid = if kind == FileKind::Csv {
@@ -203,9 +478,15 @@ fn read_file(
                 header_row: Some(grid.row_number(0)),
                 ..spec.clone()
             };
-            let layout = read::data_layout(&grid, &spec_here, &file, "")?;
+            let mut layout = read::data_layout(&grid, &spec_here, &file, "")?;
+            if let cells::Grid::Frame(f) = &grid {
+                layout.warnings.extend(f.warnings.iter().cloned());
+            }
             let sites = SiteTable::merge(&[], &spec.sites);
-            read::require_columns(&layout, &grid, &file, "", &sites)?;
+            required(
+                read::require_columns(&layout, &grid, &file, "", &sites),
+                missing,
+            )?;
             let ctx = SheetContext {
                 file: &file,
                 sheet: "",
@@ -216,7 +497,7 @@ fn read_file(
                 sites: &sites,
                 spec,
             };
-            finish_sheet(&ctx, rows, out);
+            finish_sheet(&ctx, rows, out, None);
         }
     }
     out.files.push(InputFile {
@@ -227,11 +508,71 @@ fn read_file(
     Ok(())
 }
 
-fn finish_sheet(ctx: &SheetContext<'_>, rows: &mut Rows, out: &mut Ingested) {
+/// Merged cells in the site column (one site written once beside several rows): every row
+/// of a merged range takes the site of the range's top-left cell, as the spreadsheet shows
+/// it, and a warning says so. The merges are read only when a site cell is empty.
+fn fill_merged_sites(
+    book: &mut sources::Workbook,
+    grid: &mut cells::Grid,
+    layout: &mut read::Layout,
+    file: &str,
+    sheet: &str,
+) {
+    let Some(col) = layout
+        .columns
+        .iter()
+        .find(|m| m.kind == detect::Kind::Site)
+        .map(|m| m.col)
+    else {
+        return;
+    };
+    let from = layout.data_start();
+    if !(from..grid.height()).any(|r| matches!(grid.cell(r, col), cells::Cell::Empty)) {
+        return;
+    }
+    let merges = book.merged(sheet);
+    if merges.is_empty() {
+        return;
+    }
+    let filled = grid.fill_merged(col, from, &merges);
+    if filled.is_empty() {
+        return;
+    }
+    let shown: Vec<&str> = filled.iter().take(5).map(String::as_str).collect();
+    layout.warnings.push(format!(
+        "{}: {} merged range(s) in the site column ({}{}): each row of a merged range takes the site of the range's top-left cell",
+        read::place(file, sheet),
+        filled.len(),
+        shown.join(", "),
+        if filled.len() > 5 { ", …" } else { "" }
+    ));
+}
+
+fn finish_sheet(
+    ctx: &SheetContext<'_>,
+    rows: &mut Rows,
+    out: &mut Ingested,
+    site_sheet: Option<&str>,
+) {
     out.warnings.extend(ctx.layout.warnings.iter().cloned());
     out.mapping
         .extend(ctx.layout.mapped_columns(ctx.file, ctx.sheet));
+    out.ignored.extend(accounting::to_ignored_columns(
+        &ctx.layout.ignored,
+        ctx.file,
+        ctx.sheet,
+        ctx.spec,
+    ));
+    let start = rows.accepted.len();
     read::read_rows(ctx, rows);
+    let these = &mut rows.accepted[start..];
+    let column_rule = sites::site_column_rule(ctx, these, site_sheet);
+    let unsited_rule = sites::name_unsited(ctx, these);
+    for rule in [column_rule, unsited_rule].into_iter().flatten() {
+        out.site_rules.push(rule.line);
+        out.warnings.extend(rule.warning);
+    }
+    sites::labels(ctx.sites, these, &mut out.site_labels);
 }
 
 /// Layout messages are written with their place first (`campaign.xlsx, sheet "x": ...`); the
@@ -273,6 +614,7 @@ fn finish(rows: Rows, mut out: Ingested) -> Result<Ingested, IngestError> {
     let (assumptions, frame) =
         rayon::join(|| tally_assumptions(&accepted), || build_frame(&accepted));
     out.assumptions = assumptions;
+    accounting::resemblance_warnings(&mut out);
     out.frame = frame.map_err(|e| IngestError::Layout {
         path: String::new(),
         message: format!("cannot build the table of accepted rows: {e}"),
@@ -546,59 +888,11 @@ fn text_column<'a>(name: &str, values: impl Iterator<Item = &'a str> + Clone, n:
     }
 }
 
-/// A text summary for the command line: files, mapping (header text and column letter of
-/// each quantity), row counts, assumptions and warnings.
-pub fn mapping_summary(ing: &Ingested) -> String {
-    let mut s = String::new();
-    for f in &ing.files {
-        s.push_str(&format!(
-            "input {} (sha256 {})\n",
-            f.path,
-            &f.sha256[..f.sha256.len().min(12)]
-        ));
-        for sheet in &f.sheets {
-            let cols: Vec<&MappedColumn> = ing
-                .mapping
-                .iter()
-                .filter(|m| m.file == f.path && &m.sheet == sheet)
-                .collect();
-            if cols.is_empty() {
-                s.push_str(&format!("  sheet \"{sheet}\": site table\n"));
-                continue;
-            }
-            s.push_str(&format!("  sheet \"{sheet}\":\n"));
-            for m in cols {
-                s.push_str(&format!("    {m}\n"));
-            }
-        }
-        if f.sheets.is_empty() {
-            for m in ing.mapping.iter().filter(|m| m.file == f.path) {
-                s.push_str(&format!("    {m}\n"));
-            }
-        }
+/// `1 row`, `2 rows`.
+pub fn rows_text(n: usize) -> String {
+    if n == 1 {
+        "1 row".into()
+    } else {
+        format!("{n} rows")
     }
-    let c = ing.counts;
-    s.push_str(&format!(
-        "rows: {} read = {} computed + {} rejected + {} outside the period\n",
-        c.read, c.computed, c.rejected, c.outside_period
-    ));
-    if !ing.assumptions.is_empty() {
-        s.push_str("assumed:\n");
-        for a in &ing.assumptions {
-            let src = match a.source {
-                ValueSource::Workbook => "workbook",
-                ValueSource::SiteTable => "site table",
-                ValueSource::JobFile => "job file",
-                ValueSource::BuiltIn => "built-in",
-            };
-            s.push_str(&format!(
-                "  {} = {} ({src}; {} rows)\n",
-                a.quantity, a.value, a.rows
-            ));
-        }
-    }
-    for w in &ing.warnings {
-        s.push_str(&format!("warning: {w}\n"));
-    }
-    s
 }

@@ -6,13 +6,16 @@ use std::sync::Arc;
 
 use chrono::{DateTime, TimeDelta, Utc};
 
+use super::accounting::Ignored;
 use super::cells::{
-    Cell, FillValues, Grid, NumberRead, column_index, column_letter, format_number, read_number,
+    Cell, FillValues, Grid, MAX_CELL_CHARS, NumberRead, clip, column_index, column_letter,
+    format_number, read_number, too_long,
 };
 use super::detect::{self, Kind, closest_header, parse_header};
-use super::resolve::{FxBuild, SiteTable, Sourced, default_source, fit_angstrom, site_key};
+use super::resolve::{FxBuild, SiteTable, Sourced, fit_angstrom, job_default_source, site_key};
 use super::time::{
-    ParsedTime, TimeRead, combine, parse_offset_hours, read_date, read_time, read_time_of_day,
+    ParsedTime, TimeRead, combine, leap_second_read_as_next, parse_offset_hours, read_date,
+    read_time, read_time_of_day,
 };
 use super::types::*;
 use super::validate::{Check, check};
@@ -35,6 +38,8 @@ pub(crate) struct Mapped {
     pub scale: f64,
     /// For time columns: offset stated by the header or units row [h].
     pub stated_offset_hours: Option<f64>,
+    /// For the Ångström exponent: the wavelength pair from the header or units row [nm].
+    pub pair_nm: Option<(f64, f64)>,
 }
 
 impl Mapped {
@@ -59,6 +64,8 @@ pub(crate) struct Layout {
     pub warnings: Vec<String>,
     /// A date column and a time-of-day column.
     pub split_date_time: bool,
+    /// Header columns that are not read, with the reason.
+    pub ignored: Vec<super::accounting::Ignored>,
 }
 
 impl Layout {
@@ -89,6 +96,7 @@ impl Layout {
                 letter: m.letter.clone(),
                 unit: m.unit.clone(),
                 how: m.how.to_string(),
+                wavelength_pair_nm: m.pair_nm.map(|(a, b)| [a, b]),
             })
             .collect()
     }
@@ -108,7 +116,7 @@ fn header_list(grid: &Grid, r: usize) -> Vec<(String, String)> {
         .filter_map(|c| {
             grid.cell(r, c)
                 .text()
-                .map(|t| (column_letter(grid.column_number(c)), t))
+                .map(|t| (column_letter(grid.column_number(c)), clip(&t).into_owned()))
         })
         .collect()
 }
@@ -138,7 +146,7 @@ fn scale_for(kind: Kind, unit: &str) -> Result<f64, String> {
             Kind::Aod | Kind::Ssa | Kind::Asymmetry | Kind::Albedo | Kind::Angstrom,
             "1" | "unitless" | "dimensionless" | "fraction" | "none" | "0 1",
         ) => ok(1.0),
-        (Kind::Time | Kind::Date | Kind::Site | Kind::Surface, _) => ok(1.0),
+        (Kind::Time | Kind::Date | Kind::Site | Kind::SiteName | Kind::Surface, _) => ok(1.0),
         _ => Err(format!(
             "unit \"{u}\" is not understood for {}",
             kind.name()
@@ -189,11 +197,19 @@ pub(crate) fn data_layout(
     };
     let mut warnings = Vec::new();
     let mut columns: Vec<Mapped> = Vec::new();
+    let mut ignored: Vec<Ignored> = Vec::new();
     for c in 0..grid.width() {
         let Some(text) = grid.cell(header_row, c).text() else {
             continue;
         };
+        let letter = column_letter(grid.column_number(c));
         let Some(m) = parse_header(&text) else {
+            ignored.push(Ignored::new(
+                c,
+                &letter,
+                &text,
+                detect::unrecognised_reason(&text),
+            ));
             continue;
         };
         let candidate = Mapped {
@@ -201,11 +217,12 @@ pub(crate) fn data_layout(
             kind: m.kind,
             wavelength_nm: m.wavelength_nm,
             header: text.clone(),
-            letter: column_letter(grid.column_number(c)),
+            letter,
             unit: m.unit,
             how: "detected",
             scale: 1.0,
             stated_offset_hours: None,
+            pair_nm: m.pair_nm,
         };
         if let Some(prev) = columns.iter().find(|p| p.name() == candidate.name()) {
             warnings.push(format!(
@@ -215,6 +232,16 @@ pub(crate) fn data_layout(
                 candidate.name(),
                 prev.letter,
                 prev.header
+            ));
+            ignored.push(Ignored::new(
+                c,
+                &candidate.letter,
+                &text,
+                format!(
+                    "names {} again (already column {}); only the first is read",
+                    candidate.name(),
+                    prev.letter
+                ),
             ));
             continue;
         }
@@ -253,7 +280,10 @@ pub(crate) fn data_layout(
             .wavelength_nm
             .or(from_header.as_ref().and_then(|h| h.wavelength_nm));
         let unit = if km.unit.is_empty() {
-            from_header.map(|h| h.unit).unwrap_or_default()
+            from_header
+                .as_ref()
+                .map(|h| h.unit.clone())
+                .unwrap_or_default()
         } else {
             km.unit
         };
@@ -267,11 +297,27 @@ pub(crate) fn data_layout(
             how: "job file",
             scale: 1.0,
             stated_offset_hours: None,
+            pair_nm: from_header.as_ref().and_then(|h| h.pair_nm),
         };
         let name = m.name();
+        ignored.retain(|i| i.col != col);
+        for p in columns
+            .iter()
+            .filter(|p| p.col != col && p.name() == name && p.how == "detected")
+        {
+            ignored.push(Ignored::new(
+                p.col,
+                &p.letter,
+                &p.header,
+                format!("the job file maps {name} to column {} instead", m.letter),
+            ));
+        }
         columns.retain(|p| p.col != col && !(p.name() == name && p.how == "detected"));
         columns.push(m);
     }
+    let dropped = super::accounting::apply_ignore_list(spec, &mut columns, &mut ignored);
+    ignored.extend(dropped);
+    super::accounting::site_name_alone_is_site(&mut columns);
     columns.sort_by_key(|m| m.col);
     // Units row.
     let mapped_cols: Vec<usize> = columns.iter().map(|m| m.col).collect();
@@ -293,6 +339,12 @@ pub(crate) fn data_layout(
             m.unit = detect::normalised(&u);
             if m.unit == "percent" || u.trim() == "%" {
                 m.unit = "percent".into();
+            }
+            if m.kind == Kind::Angstrom
+                && let Some((pair, rest)) = detect::units_wavelength_pair(&u)
+            {
+                m.pair_nm = m.pair_nm.or(Some(pair));
+                m.unit = rest;
             }
         }
         if matches!(m.kind, Kind::Time | Kind::Date) {
@@ -340,12 +392,15 @@ pub(crate) fn data_layout(
             ));
         }
     }
+    super::accounting::headerless_columns(grid, header_row, &columns, &mut ignored);
+    ignored.sort_by_key(|i| i.col);
     Ok(Layout {
         header_row,
         units_row,
         columns,
         warnings,
         split_date_time,
+        ignored,
     })
 }
 
@@ -438,7 +493,32 @@ pub(crate) fn require_columns(
     })
 }
 
-/// Read a site sheet into site records.
+/// A site sheet read: its sites, and how each of its header columns was read or why not.
+pub(crate) struct SiteSheet {
+    pub sites: Vec<SiteInfo>,
+    pub mapped: Vec<MappedColumn>,
+    pub ignored: Vec<Ignored>,
+}
+
+/// Quantities a site sheet gives per site.
+fn is_site_property(kind: Kind) -> bool {
+    matches!(
+        kind,
+        Kind::Site
+            | Kind::SiteName
+            | Kind::Latitude
+            | Kind::Longitude
+            | Kind::Altitude
+            | Kind::Pressure
+            | Kind::Albedo
+            | Kind::Surface
+            | Kind::UtcOffset
+    )
+}
+
+/// Read a site sheet into site records. The site column (`site`, `stn`, `station id`, ...) is
+/// the key the data rows name; a name column beside it (`name`, `site name`) gives the full
+/// name shown beside the key in the report. A name column alone is the key.
 ///
 /// Errors: a value outside its range or not a number (the site table is small and
 /// hand-made: fix it rather than guess).
@@ -448,21 +528,71 @@ pub(crate) fn read_site_sheet(
     fill: &FillValues,
     file: &str,
     sheet: &str,
-) -> Result<Vec<SiteInfo>, IngestError> {
+) -> Result<SiteSheet, IngestError> {
     let here = place(file, sheet);
     let mut cols: Vec<(usize, Kind, f64)> = Vec::new();
-    for c in 0..grid.width() {
-        if let Some(m) = grid
-            .cell(header_row, c)
-            .text()
-            .and_then(|t| parse_header(&t))
-        {
-            if cols.iter().any(|(_, k, _)| *k == m.kind) {
-                continue;
-            }
-            let scale = scale_for(m.kind, &m.unit).unwrap_or(1.0);
-            cols.push((c, m.kind, scale));
+    let mut read_columns = Vec::new();
+    let mut ignored = Vec::new();
+    let headers: Vec<(usize, String, Option<detect::HeaderMeaning>)> = (0..grid.width())
+        .filter_map(|c| {
+            let t = grid.cell(header_row, c).text()?;
+            let m = parse_header(&t);
+            Some((c, t, m))
+        })
+        .collect();
+    let has_key = headers
+        .iter()
+        .any(|(_, _, m)| m.as_ref().is_some_and(|m| m.kind == Kind::Site));
+    for (c, text, m) in headers {
+        let letter = column_letter(grid.column_number(c));
+        let Some(m) = m else {
+            let why = detect::unrecognised_reason(&text);
+            ignored.push(Ignored::new(c, &letter, &text, why));
+            continue;
+        };
+        let kind = if m.kind == Kind::SiteName && !has_key {
+            Kind::Site
+        } else {
+            m.kind
+        };
+        if !is_site_property(kind) {
+            ignored.push(Ignored::new(
+                c,
+                &letter,
+                &text,
+                format!(
+                    "{} is not a property of a site: a site sheet gives site, site_name, latitude, longitude, altitude, pressure, albedo, surface, utc_offset",
+                    kind.name()
+                ),
+            ));
+            continue;
         }
+        if let Some((pc, _, _)) = cols.iter().find(|(_, k, _)| *k == kind) {
+            ignored.push(Ignored::new(
+                c,
+                &letter,
+                &text,
+                format!(
+                    "names {} again (already column {}); only the first is read",
+                    kind.name(),
+                    column_letter(grid.column_number(*pc))
+                ),
+            ));
+            continue;
+        }
+        let scale = scale_for(kind, &m.unit).unwrap_or(1.0);
+        cols.push((c, kind, scale));
+        read_columns.push(MappedColumn {
+            file: file.to_string(),
+            sheet: sheet.to_string(),
+            quantity: kind.name().to_string(),
+            wavelength_nm: None,
+            header: text,
+            letter,
+            unit: m.unit,
+            how: "site table".into(),
+            wavelength_pair_nm: None,
+        });
     }
     let mut start = header_row + 1;
     let mapped: Vec<usize> = cols.iter().map(|c| c.0).collect();
@@ -482,8 +612,21 @@ pub(crate) fn read_site_sheet(
                     kind.name()
                 ),
             };
+            if let Cell::Text(t) = cell
+                && let Some(n) = too_long(t)
+            {
+                return Err(bad(format!(
+                    "the text has {n} characters, more than the {MAX_CELL_CHARS} a worksheet cell holds"
+                )));
+            }
             match kind {
                 Kind::Site => s.name = cell.text().unwrap_or_default(),
+                Kind::SiteName => {
+                    s.full_name = cell
+                        .text()
+                        .map(|t| t.trim().to_string())
+                        .filter(|t| !t.is_empty() && !fill.is_missing(&cell))
+                }
                 Kind::Surface if !fill.is_missing(&cell) => {
                     s.surface = Some(parse_surface(&cell).ok_or_else(|| {
                         bad(format!("expected land or ocean, found {}", cell.display()))
@@ -531,10 +674,14 @@ pub(crate) fn read_site_sheet(
             out.push(s);
         }
     }
-    Ok(out)
+    Ok(SiteSheet {
+        sites: out,
+        mapped: read_columns,
+        ignored,
+    })
 }
 
-fn parse_surface(cell: &Cell<'_>) -> Option<SurfaceType> {
+pub(crate) fn parse_surface(cell: &Cell<'_>) -> Option<SurfaceType> {
     let t = cell.text()?.to_lowercase();
     match t.trim() {
         "land" | "l" | "ground" => Some(SurfaceType::Land),
@@ -582,6 +729,8 @@ pub(crate) struct Accepted {
     pub site: String,
     /// The site as compared for duplicates.
     pub site_key: Arc<str>,
+    /// Full name from the row's site-name column, if any.
+    pub site_full_name: Option<String>,
     pub observation: Observation,
     pub warnings: Vec<RowWarning>,
     pub assumptions: Vec<(&'static str, Val, ValueSource)>,
@@ -629,7 +778,10 @@ impl Problem {
         Problem {
             col: Some(m.col),
             column: m.name(),
-            value: cell.text().unwrap_or_default(),
+            value: cell
+                .text()
+                .map(|t| clip(&t).into_owned())
+                .unwrap_or_default(),
             reason,
         }
     }
@@ -642,6 +794,7 @@ struct RowValues {
     time_of_day: Option<(f64, Option<i32>)>,
     time_col: Option<usize>,
     site: Option<String>,
+    site_full_name: Option<String>,
     latitude: Option<f64>,
     longitude: Option<f64>,
     altitude: Option<f64>,
@@ -683,10 +836,15 @@ pub(crate) fn read_rows(ctx: &SheetContext<'_>, rows: &mut Rows) {
         .collect();
     if !notes.is_empty() {
         rows.warnings.push(format!(
-            "{}: {} row(s) after the last data row hold no measurement and are read as notes (rows {})",
+            "{}: {} row(s) after the last data row hold no measurement and are read as notes (rows {}{})",
             place(ctx.file, ctx.sheet),
             notes.len(),
-            notes.iter().map(|n| n.to_string()).collect::<Vec<_>>().join(", ")
+            notes.iter().take(10).map(|n| n.to_string()).collect::<Vec<_>>().join(", "),
+            if notes.len() > 10 {
+                format!(" and {} more", notes.len() - 10)
+            } else {
+                String::new()
+            }
         ));
     }
     // Rows are read and checked in parallel (each on its own), then counted and checked for
@@ -697,9 +855,12 @@ pub(crate) fn read_rows(ctx: &SheetContext<'_>, rows: &mut Rows) {
         .into_par_iter()
         .with_min_len(1024)
         .filter_map(|r| {
-            let any_mapped = mapped_cols
-                .iter()
-                .any(|&c| !matches!(grid.cell(r, c), Cell::Empty));
+            // Blank text counts as empty (a csv line of spaces is a blank line).
+            let any_mapped = mapped_cols.iter().any(|&c| match grid.cell(r, c) {
+                Cell::Empty => false,
+                Cell::Text(t) => !t.trim().is_empty(),
+                _ => true,
+            });
             if !any_mapped && grid.row_is_empty(r) {
                 return None;
             }
@@ -749,7 +910,9 @@ pub(crate) fn read_rows(ctx: &SheetContext<'_>, rows: &mut Rows) {
                     },
                     acc.observation.time_utc.timestamp_millis(),
                 );
-                if let Some(&first) = rows.seen.get(&key) {
+                // Rows placed by their date alone share a nominal time: not duplicates.
+                let nominal_time = lacks_time_of_day(&acc.warnings);
+                if let Some(&first) = rows.seen.get(&key).filter(|_| !nominal_time) {
                     let f = &rows.accepted[first].origin;
                     let origin = acc.origin;
                     let first_ref = if f.file == origin.file && f.sheet == origin.sheet {
@@ -778,7 +941,9 @@ pub(crate) fn read_rows(ctx: &SheetContext<'_>, rows: &mut Rows) {
                     });
                     continue;
                 }
-                rows.seen.insert(key, rows.accepted.len());
+                if !nominal_time {
+                    rows.seen.insert(key, rows.accepted.len());
+                }
                 rows.counts.computed += 1;
                 rows.accepted.push(acc);
             }
@@ -845,8 +1010,22 @@ fn read_row(ctx: &SheetContext<'_>, r: usize) -> Result<Option<Accepted>, Proble
     let fill = ctx.fill;
     let mut v = RowValues::default();
     let mut warnings: Vec<RowWarning> = Vec::new();
+    // Empty or fill-value cells of provided columns: (quantity, column, wavelength, as found).
+    let mut missing_cells: Vec<(&'static str, usize, f64, String)> = Vec::new();
+    let mut bad_time_of_day: Option<Problem> = None;
     for m in &ctx.layout.columns {
         let cell = grid.cell(r, m.col);
+        if let Cell::Text(t) = cell
+            && let Some(n) = too_long(t)
+        {
+            return Err(Problem::at(
+                m,
+                &cell,
+                format!(
+                    "the text has {n} characters, more than the {MAX_CELL_CHARS} a worksheet cell holds (the report could not carry it)"
+                ),
+            ));
+        }
         match m.kind {
             Kind::Time => {
                 v.time_col = Some(m.col);
@@ -854,15 +1033,16 @@ fn read_row(ctx: &SheetContext<'_>, r: usize) -> Result<Option<Accepted>, Proble
                     match read_time_of_day(&cell, ctx.is_1904, fill) {
                         Ok(t) => v.time_of_day = t,
                         Err(Some(TimeRead::Value(p))) => v.time = Some((p, m.col)),
+                        // Placed by its date if the date is readable (decided below).
                         Err(Some(TimeRead::Bad(why))) => {
-                            return Err(Problem::at(
+                            bad_time_of_day = Some(Problem::at(
                                 m,
                                 &cell,
                                 format!("{why}, found {}", cell.display()),
                             ));
                         }
                         Err(_) => {
-                            return Err(Problem::at(
+                            bad_time_of_day = Some(Problem::at(
                                 m,
                                 &cell,
                                 format!(
@@ -910,6 +1090,11 @@ fn read_row(ctx: &SheetContext<'_>, r: usize) -> Result<Option<Accepted>, Proble
                     v.site = cell.text();
                 }
             }
+            Kind::SiteName => {
+                if !fill.is_missing(&cell) {
+                    v.site_full_name = cell.text();
+                }
+            }
             Kind::Surface => {
                 if !fill.is_missing(&cell) {
                     v.surface = Some(parse_surface(&cell).ok_or_else(|| {
@@ -936,7 +1121,12 @@ fn read_row(ctx: &SheetContext<'_>, r: usize) -> Result<Option<Accepted>, Proble
             }
             kind => {
                 let x = match read_number(&cell, fill) {
-                    NumberRead::Missing => continue,
+                    NumberRead::Missing => {
+                        if let Some(q) = fallback_quantity(kind) {
+                            missing_cells.push((q, m.col, m.wavelength(), cell.display()));
+                        }
+                        continue;
+                    }
                     NumberRead::Bad(why) => {
                         return Err(Problem::at(
                             m,
@@ -999,10 +1189,31 @@ fn read_row(ctx: &SheetContext<'_>, r: usize) -> Result<Option<Accepted>, Proble
         }
     };
     // Time.
-    let parsed = match (v.time, v.date, v.time_of_day) {
+    // A readable date without a readable time of day: the row is placed on its date, its
+    // 24-hour values computed and its instantaneous values left empty.
+    let mut date_only: Option<(usize, String)> = None;
+    let mut parsed = match (v.time, v.date, v.time_of_day) {
         (Some((p, _)), _, _) => p,
-        (None, Some(d), Some((secs, off))) => combine(d, secs, off),
-        (None, Some(_), None) => return Err(missing(Kind::Time, "the time of day")),
+        (None, Some(d), Some((secs, off))) if bad_time_of_day.is_none() => combine(d, secs, off),
+        (None, Some(d), _) => {
+            // A time cell that holds a definite wrong value (a duration of a day or more, an
+            // offset beyond ±14 h) is a fault of the cell, not a missing time: reject the row.
+            if let Some(p) = bad_time_of_day
+                .take_if(|p| p.reason.contains("duration") || p.reason.contains("UTC offset"))
+            {
+                return Err(p);
+            }
+            let time_col = first_col(Kind::Time).map(|m| m.col);
+            let found = match &bad_time_of_day {
+                Some(p) if !p.value.is_empty() => format!("\"{}\"", p.value),
+                _ => "an empty cell".into(),
+            };
+            date_only = time_col.map(|c| (c, found));
+            if date_only.is_none() {
+                return Err(missing(Kind::Time, "the time of day"));
+            }
+            d
+        }
         (None, None, _) => {
             return Err(if ctx.layout.split_date_time {
                 missing(Kind::Date, "the date")
@@ -1011,6 +1222,15 @@ fn read_row(ctx: &SheetContext<'_>, r: usize) -> Result<Option<Accepted>, Proble
             });
         }
     };
+    if leap_second_read_as_next(&mut parsed) {
+        warnings.push(RowWarning {
+            cell: v.time_col.map(|c| grid.a1(r, c)).unwrap_or_default(),
+            message: format!(
+                "second 60 (a leap second) is read as the following instant, {}",
+                parsed.naive.format("%Y-%m-%d %H:%M:%S")
+            ),
+        });
+    }
     if v.aod.is_empty() {
         return Err(missing(Kind::Aod, "AOD"));
     }
@@ -1020,8 +1240,12 @@ fn read_row(ctx: &SheetContext<'_>, r: usize) -> Result<Option<Accepted>, Proble
     if v.asymmetry.is_empty() {
         return Err(missing(Kind::Asymmetry, "the asymmetry factor"));
     }
+    refuse_unallowed_fallback(ctx, &missing_cells)?;
     let mut assumptions: Vec<(&'static str, Val, ValueSource)> = Vec::with_capacity(12);
     let d = &ctx.spec.defaults;
+    let default_source = |key: &str, field: fn(&AtmosphereDefaults) -> f64| {
+        job_default_source(&ctx.spec.defaults_set, key, d, field)
+    };
     // Site.
     let site_name = match v.site.take() {
         Some(s) => s,
@@ -1081,11 +1305,13 @@ fn read_row(ctx: &SheetContext<'_>, r: usize) -> Result<Option<Accepted>, Proble
                 .to_string()
         } else if entry.is_none() {
             format!(
-                "no latitude/longitude: the row gives none and site \"{site_name}\" is not in the site table"
+                "no latitude/longitude: the row gives none and site \"{}\" is not in the site table",
+                super::cells::clip(&site_name)
             )
         } else {
             format!(
-                "no latitude/longitude: the row gives none and the site table gives none for \"{site_name}\""
+                "no latitude/longitude: the row gives none and the site table gives none for \"{}\"",
+                super::cells::clip(&site_name)
             )
         };
         return Err(Problem {
@@ -1097,12 +1323,24 @@ fn read_row(ctx: &SheetContext<'_>, r: usize) -> Result<Option<Accepted>, Proble
             } else {
                 "latitude".into()
             },
-            value: site_name.clone(),
+            value: super::cells::clip(&site_name).into_owned(),
             reason,
         });
     };
     if longitude >= 180.0 {
         longitude -= 360.0;
+    }
+    if let (Some(e), Some(_), Some(_)) = (entry, v.latitude, v.longitude)
+        && !ctx.spec.moving_platform
+        && let Some(w) = super::sites::coordinate_warning(
+            ctx.spec,
+            e,
+            latitude,
+            longitude,
+            first_col(Kind::Latitude).map(|m| grid.a1(r, m.col)),
+        )
+    {
+        warnings.push(w);
     }
     let altitude_m = from_site(
         &mut assumptions,
@@ -1115,7 +1353,7 @@ fn read_row(ctx: &SheetContext<'_>, r: usize) -> Result<Option<Accepted>, Proble
         assumptions.push((
             "altitude_m",
             Val::Num(d.altitude_m.to_bits()),
-            default_source(d, |d| d.altitude_m),
+            default_source("altitude_m", |d| d.altitude_m),
         ));
         d.altitude_m
     });
@@ -1158,14 +1396,28 @@ fn read_row(ctx: &SheetContext<'_>, r: usize) -> Result<Option<Accepted>, Proble
                     assumptions.push((
                         "surface",
                         Val::Text("ocean"),
-                        default_source(d, |d| d.surface),
+                        job_default_source(&ctx.spec.defaults_set, "surface", d, |d| d.surface),
                     ));
                 }
                 d.surface
             }
         };
         match surface_type {
-            SurfaceType::Ocean => (SurfaceType::Ocean, None),
+            SurfaceType::Ocean => {
+                // The ocean model wins over a site albedo: its albedo follows the sun.
+                if let Some(a) = entry.and_then(|e| e.albedo) {
+                    assumptions.push((
+                        "albedo",
+                        Val::Owned(format!(
+                            "Taylor et al. (1996) ocean albedo, not the {} value {} (site {site_rc}): an ocean surface takes its albedo from the solar zenith angle; give surface = \"land\" to use a fixed albedo",
+                            source_label(a.source),
+                            format_number(a.value)
+                        )),
+                        a.source,
+                    ));
+                }
+                (SurfaceType::Ocean, None)
+            }
             SurfaceType::Land => match entry.and_then(|e| e.albedo) {
                 Some(a) => {
                     assumptions.push((
@@ -1179,7 +1431,7 @@ fn read_row(ctx: &SheetContext<'_>, r: usize) -> Result<Option<Accepted>, Proble
                     assumptions.push((
                         "albedo",
                         Val::Num(d.albedo.to_bits()),
-                        default_source(d, |d| d.albedo),
+                        default_source("albedo", |d| d.albedo),
                     ));
                     (SurfaceType::Land, Some(d.albedo))
                 }
@@ -1196,19 +1448,19 @@ fn read_row(ctx: &SheetContext<'_>, r: usize) -> Result<Option<Accepted>, Proble
         "ozone_du",
         v.ozone,
         d.ozone_du,
-        default_source(d, |d| d.ozone_du),
+        default_source("ozone_du", |d| d.ozone_du),
     );
     let water_cm = or_default(
         "water_cm",
         v.water,
         d.water_cm,
-        default_source(d, |d| d.water_cm),
+        default_source("water_cm", |d| d.water_cm),
     );
     let layer_top_km = or_default(
         "layer_top_km",
         v.layer_top,
         d.layer_top_km,
-        default_source(d, |d| d.layer_top_km),
+        default_source("layer_top_km", |d| d.layer_top_km),
     );
     if layer_top_km <= d.layer_base_km {
         let m = first_col(Kind::LayerTop);
@@ -1239,7 +1491,7 @@ fn read_row(ctx: &SheetContext<'_>, r: usize) -> Result<Option<Accepted>, Proble
         ));
         s.value
     } else {
-        let src = default_source(d, |d| d.utc_offset_hours);
+        let src = default_source("utc_offset_hours", |d| d.utc_offset_hours);
         let val = if d.utc_offset_hours == 0.0 {
             Val::Text("+00:00 (times without an offset read as UTC)")
         } else {
@@ -1248,9 +1500,21 @@ fn read_row(ctx: &SheetContext<'_>, r: usize) -> Result<Option<Accepted>, Proble
         assumptions.push(("utc_offset_hours", val, src));
         d.utc_offset_hours
     };
-    let time_utc: DateTime<Utc> = (parsed.naive
-        - TimeDelta::milliseconds((offset_hours * 3_600_000.0).round() as i64))
-    .and_utc();
+    let time_utc: DateTime<Utc> = match &date_only {
+        // Local mean-solar noon of the date: the 24-hour mean is that of the date.
+        Some(_) => date_only_time(parsed.naive.date(), longitude),
+        None => (parsed.naive
+            - TimeDelta::milliseconds((offset_hours * 3_600_000.0).round() as i64))
+        .and_utc(),
+    };
+    if let Some((col, found)) = &date_only {
+        warnings.push(RowWarning {
+            cell: ctx.grid.a1(r, *col),
+            message: format!(
+                "{NO_TIME_OF_DAY} (found {found}): placed on its date; the 24-hour values are computed, the instantaneous values are left empty"
+            ),
+        });
+    }
     if let Some(p) = &ctx.spec.period
         && (time_utc < p.start || time_utc >= p.end)
     {
@@ -1271,6 +1535,14 @@ fn read_row(ctx: &SheetContext<'_>, r: usize) -> Result<Option<Accepted>, Proble
         ));
     }
     let angstrom = if let Some(a) = v.angstrom {
+        if let Some(m) = first_col(Kind::Angstrom)
+            && let Some(w) = super::accounting::outside_angstrom_pair(m, aod_wavelength_nm)
+        {
+            warnings.push(RowWarning {
+                cell: grid.a1(r, m.col),
+                message: w,
+            });
+        }
         a
     } else if let Some(a) = fit_angstrom(&aod) {
         let wls: Vec<String> = aod
@@ -1297,7 +1569,7 @@ fn read_row(ctx: &SheetContext<'_>, r: usize) -> Result<Option<Accepted>, Proble
         assumptions.push((
             "angstrom",
             Val::Num(d.angstrom.to_bits()),
-            default_source(d, |d| d.angstrom),
+            default_source("angstrom", |d| d.angstrom),
         ));
         d.angstrom
     };
@@ -1325,6 +1597,12 @@ fn read_row(ctx: &SheetContext<'_>, r: usize) -> Result<Option<Accepted>, Proble
                 ),
             });
         }
+    }
+    for (q, col, wl, found) in &missing_cells {
+        warnings.push(RowWarning {
+            cell: ctx.grid.a1(r, *col),
+            message: fallback_message(q, *wl, found, &assumptions),
+        });
     }
     let observation = Observation {
         time_utc,
@@ -1358,6 +1636,7 @@ fn read_row(ctx: &SheetContext<'_>, r: usize) -> Result<Option<Accepted>, Proble
         },
         site: site_name,
         site_key: site_rc,
+        site_full_name: v.site_full_name,
         observation,
         warnings,
         assumptions,
@@ -1365,6 +1644,145 @@ fn read_row(ctx: &SheetContext<'_>, r: usize) -> Result<Option<Accepted>, Proble
         albedo,
         surface,
     }))
+}
+
+/// How the warning of a row without a readable time of day starts (see [`lacks_time_of_day`]).
+pub const NO_TIME_OF_DAY: &str = "no readable time of day";
+
+/// Whether a row was placed by its date alone (its warnings say so): its instantaneous
+/// values are not known.
+pub fn lacks_time_of_day(warnings: &[RowWarning]) -> bool {
+    warnings
+        .iter()
+        .any(|w| w.message.starts_with(NO_TIME_OF_DAY))
+}
+
+/// Local mean-solar noon of `date` at `longitude_deg` [deg east], in UTC: 12:00 − λ/15 h,
+/// kept within the date (the day whose 24-hour mean the physics computes, as its local
+/// solar date is UTC + λ/15 h).
+fn date_only_time(date: chrono::NaiveDate, longitude_deg: f64) -> DateTime<Utc> {
+    let shift_s = (longitude_deg.clamp(-179.99, 180.0) * 240.0).round() as i64;
+    (date.and_time(chrono::NaiveTime::MIN) + TimeDelta::seconds(12 * 3600 - shift_s)).and_utc()
+}
+
+/// Empty the instantaneous values of rows placed by their date alone
+/// ([`lacks_time_of_day`]): NaN effect and zenith, no sun flags. `results` is aligned with
+/// `row_warnings`.
+pub fn blank_instantaneous(
+    row_warnings: &[Vec<RowWarning>],
+    results: &mut [crate::physics::ObservationResult],
+) {
+    for (w, res) in row_warnings.iter().zip(results.iter_mut()) {
+        if lacks_time_of_day(w) {
+            res.solar_zenith_deg = f64::NAN;
+            let nan = |e: &mut crate::physics::Effect| {
+                let blank = |f: &mut crate::physics::Fluxes| {
+                    f.toa_down = f64::NAN;
+                    f.toa_up = f64::NAN;
+                    f.toa_net = f64::NAN;
+                    f.sfc_down_direct = f64::NAN;
+                    f.sfc_down_diffuse = f64::NAN;
+                    f.sfc_up = f64::NAN;
+                    f.sfc_net = f64::NAN;
+                };
+                blank(&mut e.clean);
+                blank(&mut e.aerosol);
+                e.dre_toa = f64::NAN;
+                e.dre_sfc = f64::NAN;
+                e.dre_atm = f64::NAN;
+                e.efficiency_toa = f64::NAN;
+                e.efficiency_sfc = f64::NAN;
+                e.heating_rate_k_day = f64::NAN;
+            };
+            nan(&mut res.instantaneous);
+            res.flags.sun_below_horizon = false;
+            res.flags.low_sun = false;
+        }
+    }
+}
+
+/// The `[input] fallback` name of a quantity whose empty cells can take a value from
+/// elsewhere; `None` for the others (time, site, location, surface and UTC offset have rules
+/// of their own).
+fn fallback_quantity(kind: Kind) -> Option<&'static str> {
+    match kind {
+        Kind::Angstrom
+        | Kind::Aod
+        | Kind::Ssa
+        | Kind::Asymmetry
+        | Kind::Ozone
+        | Kind::Water
+        | Kind::Pressure
+        | Kind::Altitude
+        | Kind::Albedo
+        | Kind::LayerTop => Some(kind.name()),
+        _ => None,
+    }
+}
+
+/// Reject the row at the first empty or fill-value cell whose quantity the job file does not
+/// allow to fall back (a measured value is never replaced by a default unasked).
+fn refuse_unallowed_fallback(
+    ctx: &SheetContext<'_>,
+    missing: &[(&'static str, usize, f64, String)],
+) -> Result<(), Problem> {
+    let Some((q, col, _, found)) = missing.iter().find(|m| !ctx.spec.allows_fallback(m.0)) else {
+        return Ok(());
+    };
+    let m = ctx.layout.columns.iter().find(|m| m.col == *col);
+    Err(Problem {
+        col: Some(*col),
+        column: m.map(|m| m.name()).unwrap_or_else(|| q.to_string()),
+        value: if found == "an empty cell" {
+            String::new()
+        } else {
+            found.trim_matches('"').to_string()
+        },
+        reason: format!(
+            "expected a number, found {found} (empty or a fill value) in a column the workbook provides; a measured {q} is not replaced by a default unless the job file allows it: fill the cell, or add \"{q}\" to [input] fallback"
+        ),
+    })
+}
+
+/// The warning of a row whose empty or fill-value cell took a value from elsewhere.
+fn fallback_message(
+    quantity: &str,
+    wavelength_nm: f64,
+    found: &str,
+    assumptions: &[(&'static str, Val, ValueSource)],
+) -> String {
+    let used = |key: &str, unit: &str| {
+        assumptions
+            .iter()
+            .rev()
+            .find(|a| a.0 == key)
+            .map(|(_, val, src)| format!("{}{unit} ({}) is used", val.text(), source_label(*src)))
+            .unwrap_or_else(|| "the value from elsewhere is used".into())
+    };
+    match quantity {
+        "aod" | "ssa" | "asymmetry" => format!(
+            "{quantity} at {} nm is {found}: it is left out and the other wavelengths are used ([input] fallback allows it)",
+            format_number(wavelength_nm)
+        ),
+        "angstrom" => format!("angstrom is {found}: {}", used("angstrom", "")),
+        "ozone" => format!("ozone is {found}: {}", used("ozone_du", " DU")),
+        "water" => format!("water is {found}: {}", used("water_cm", " cm")),
+        "pressure" => format!("pressure is {found}: {}", used("pressure_hpa", "")),
+        "altitude" => format!("altitude is {found}: {}", used("altitude_m", " m")),
+        "albedo" => format!("albedo is {found}: {}", used("albedo", "")),
+        "layer_top" => format!("layer_top is {found}: {}", used("layer_top_km", " km")),
+        other => format!("{other} is {found}: the value from elsewhere is used"),
+    }
+}
+
+/// Where a value came from, as the mapping summary and row warnings say it.
+pub(crate) fn source_label(s: ValueSource) -> &'static str {
+    match s {
+        ValueSource::Workbook => "workbook",
+        ValueSource::SiteTable => "site table",
+        ValueSource::JobFile => "job file",
+        ValueSource::BuiltIn => "built-in default",
+    }
 }
 
 pub(crate) fn surface_name(s: SurfaceType) -> &'static str {

@@ -19,6 +19,8 @@ pub(crate) struct SiteEntry {
     pub name: String,
     /// `name`, shared by the assumptions of its rows.
     pub rc: std::sync::Arc<str>,
+    /// Full name shown beside the key in the report.
+    pub full_name: Option<String>,
     pub latitude_deg: Option<Sourced<f64>>,
     pub longitude_deg: Option<Sourced<f64>>,
     pub altitude_m: Option<Sourced<f64>>,
@@ -33,6 +35,7 @@ impl Default for SiteEntry {
         Self {
             name: String::new(),
             rc: std::sync::Arc::from(""),
+            full_name: None,
             latitude_deg: None,
             longitude_deg: None,
             altitude_m: None,
@@ -128,6 +131,9 @@ impl SiteTable {
                 put(&mut e.pressure_hpa, s.pressure_hpa);
                 put(&mut e.albedo, s.albedo);
                 put(&mut e.utc_offset_hours, s.utc_offset_hours);
+                if let Some(f) = s.full_name.as_ref().filter(|f| !f.trim().is_empty()) {
+                    e.full_name = Some(f.trim().to_string());
+                }
                 if let Some(value) = s.surface {
                     e.surface = Some(Sourced { value, source });
                 }
@@ -164,16 +170,19 @@ impl SiteTable {
     }
 }
 
-/// Source of a job default: [`ValueSource::BuiltIn`] when it equals the built-in value,
-/// else [`ValueSource::JobFile`].
-pub(crate) fn default_source<T: PartialEq>(
+/// Source of a job default: [`ValueSource::JobFile`] when the job file writes `key` out or
+/// the value differs from the built-in one, else [`ValueSource::BuiltIn`].
+pub(crate) fn job_default_source<T: PartialEq>(
+    explicit: &[String],
+    key: &str,
     defaults: &AtmosphereDefaults,
     field: impl Fn(&AtmosphereDefaults) -> T,
 ) -> ValueSource {
-    if field(defaults) == field(&AtmosphereDefaults::default()) {
-        ValueSource::BuiltIn
-    } else {
+    if explicit.iter().any(|k| k == key) || field(defaults) != field(&AtmosphereDefaults::default())
+    {
         ValueSource::JobFile
+    } else {
+        ValueSource::BuiltIn
     }
 }
 
@@ -208,7 +217,7 @@ pub fn fit_angstrom(points: &[(f64, f64)]) -> Option<f64> {
 }
 
 /// A spectral quantity at `wavelength_nm`: linear in ln λ between the given wavelengths, the
-/// end values held outside them (hazebook's aerosol spectral model, product brief §2).
+/// end values held outside them (hazebook's aerosol spectral model, README "Methods").
 ///
 /// - `points`: (wavelength [nm], value) sorted by ascending wavelength, non-empty.
 pub fn interpolate_ln_wavelength(points: &[(f64, f64)], wavelength_nm: f64) -> f64 {

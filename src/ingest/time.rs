@@ -2,7 +2,7 @@
 //! ISO 8601 text with or without an offset, and separate date and time columns.
 
 use calamine::{ExcelDateTime, ExcelDateTimeType};
-use chrono::{DateTime, FixedOffset, NaiveDate, NaiveDateTime, NaiveTime, TimeDelta};
+use chrono::{DateTime, FixedOffset, NaiveDate, NaiveDateTime, NaiveTime, TimeDelta, Timelike};
 
 use super::cells::{Cell, FillValues};
 
@@ -136,8 +136,22 @@ pub(crate) enum TimeRead {
     Bad(String),
 }
 
+/// Largest UTC offset in use [min]: +14:00 (Line Islands) and −12:00; ±14 h is the range
+/// accepted (common practice).
+pub(crate) const MAX_OFFSET_MINUTES: i32 = 14 * 60;
+
 fn check_year(p: ParsedTime) -> TimeRead {
     use chrono::Datelike;
+    if let Some(m) = p.offset_minutes
+        && m.abs() > MAX_OFFSET_MINUTES
+    {
+        let sign = if m < 0 { '-' } else { '+' };
+        return TimeRead::Bad(format!(
+            "expected a UTC offset within ±14:00 (the largest in use), found {sign}{:02}:{:02}",
+            m.abs() / 60,
+            m.abs() % 60
+        ));
+    }
     if YEARS.contains(&p.naive.year()) {
         TimeRead::Value(p)
     } else {
@@ -203,6 +217,12 @@ pub(crate) fn read_time_of_day(
     match cell {
         Cell::Excel(d) => {
             let v = d.as_f64();
+            if d.is_duration() && !(0.0..1.0).contains(&v) {
+                return Err(Some(TimeRead::Bad(
+                    "expected a time of day below 24:00, not a duration of a day or more (the cell is formatted as a duration, such as [h]:mm)"
+                        .into(),
+                )));
+            }
             if (0.0..1.0).contains(&v) || d.is_duration() {
                 Ok(Some((
                     (v.fract() * 86_400.0 * 1000.0).round() / 1000.0,
@@ -223,9 +243,14 @@ pub(crate) fn read_time_of_day(
             }
             // ISO 8601 duration from ods (PT10H30M00S)
             if let Some(rest) = t.strip_prefix("PT") {
-                return parse_iso_duration(rest)
-                    .map(|s| Some((s, None)))
-                    .ok_or(None);
+                return match parse_iso_duration(rest) {
+                    Some(s) if s < 86_400.0 => Ok(Some((s, None))),
+                    Some(_) => Err(Some(TimeRead::Bad(
+                        "expected a time of day below 24:00, not a duration of a day or more"
+                            .into(),
+                    ))),
+                    None => Err(None),
+                };
             }
             let (clock, offset) = split_clock_offset(t);
             for f in ["%H:%M:%S%.f", "%H:%M"] {
@@ -280,6 +305,23 @@ pub(crate) fn read_date(cell: &Cell<'_>, is_1904: bool, fill: &FillValues) -> Ti
             has_time: false,
         }),
         other => other,
+    }
+}
+
+/// A leap second (`23:59:60`, which chrono reads as a second 59 of a second's length more)
+/// is read as the following instant (`00:00:00` of the next day). Returns true when the time
+/// was one. Without this the solar position of such an instant is not a number.
+pub(crate) fn leap_second_read_as_next(p: &mut ParsedTime) -> bool {
+    let ns = p.naive.nanosecond();
+    if ns < 1_000_000_000 {
+        return false;
+    }
+    match p.naive.with_nanosecond(ns - 1_000_000_000) {
+        Some(n) => {
+            p.naive = n + TimeDelta::seconds(1);
+            true
+        }
+        None => false,
     }
 }
 
@@ -366,6 +408,52 @@ mod tests {
             Ok(Some((37_800.0, None)))
         );
         assert!(read_time_of_day(&Cell::Text("noon"), false, &f).is_err());
+    }
+
+    #[test]
+    fn offsets_beyond_fourteen_hours_rejected() {
+        let f = FillValues::new(&[]);
+        for t in ["2027-06-22T12:00:00+15:00", "2027-06-22T12:00:00-23:59"] {
+            match read_time(&Cell::Text(t), false, &f) {
+                TimeRead::Bad(why) => assert!(why.contains("±14:00"), "{why}"),
+                other => panic!("{t}: {other:?}"),
+            }
+        }
+        assert!(matches!(
+            read_time(&Cell::Text("2027-06-22T12:00:00+14:00"), false, &f),
+            TimeRead::Value(_)
+        ));
+    }
+
+    #[test]
+    fn leap_second_is_the_following_instant() {
+        let f = FillValues::new(&[]);
+        let TimeRead::Value(mut p) = read_time(&Cell::Text("2027-06-22T11:59:60Z"), false, &f)
+        else {
+            panic!("not read")
+        };
+        assert!(leap_second_read_as_next(&mut p));
+        assert_eq!(p.naive, ymdhms("2027-06-22 12:00:00"));
+        assert!(!leap_second_read_as_next(&mut p));
+    }
+
+    #[test]
+    fn durations_of_a_day_or_more_are_not_times_of_day() {
+        let f = FillValues::new(&[]);
+        let d = ExcelDateTime::new(25.0 / 24.0, ExcelDateTimeType::TimeDelta, false);
+        assert!(matches!(
+            read_time_of_day(&Cell::Excel(d), false, &f),
+            Err(Some(TimeRead::Bad(_)))
+        ));
+        let d = ExcelDateTime::new(0.5, ExcelDateTimeType::TimeDelta, false);
+        assert_eq!(
+            read_time_of_day(&Cell::Excel(d), false, &f),
+            Ok(Some((43_200.0, None)))
+        );
+        assert!(matches!(
+            read_time_of_day(&Cell::Text("PT25H00M00S"), false, &f),
+            Err(Some(TimeRead::Bad(_)))
+        ));
     }
 
     #[test]

@@ -23,7 +23,11 @@ pub enum SurfaceType {
 #[derive(Debug, Clone, PartialEq, Default, serde::Serialize, serde::Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct SiteInfo {
+    /// The site's key: the code or name the data rows give in their site column.
     pub name: String,
+    /// Full name shown beside the key in the report (`Harlsby Flats (HRF)`), if any.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub full_name: Option<String>,
     pub latitude_deg: Option<f64>,
     pub longitude_deg: Option<f64>,
     pub altitude_m: Option<f64>,
@@ -107,6 +111,58 @@ pub struct InputSpec {
     pub defaults: AtmosphereDefaults,
     /// Keep only rows in this window (rows outside are counted, not rejected).
     pub period: Option<Period>,
+    /// Strict mode: an ignored column not in `ignore_columns`, or a built-in default for a
+    /// quantity not in `defaults_allowed`, fails the run (see [`strict_problems`](crate::ingest::strict_problems)).
+    pub strict: bool,
+    /// Columns (header text or column letter) not to read, and that strict mode accepts
+    /// being ignored.
+    pub ignore_columns: Vec<String>,
+    /// Quantities (`angstrom`, `ozone`, `water`, ...) that may take a built-in default in
+    /// strict mode.
+    pub defaults_allowed: Vec<String>,
+    /// Site name for rows without a site column (else the file name).
+    pub site_name: Option<String>,
+    /// The rows come from a moving platform (ship, aircraft): rows without a site column are
+    /// one platform, and row coordinates are not compared with the site table's.
+    pub moving_platform: bool,
+    /// Largest distance between a row's coordinates and its site's in the site table before
+    /// the row is warned about [km]; `None`: [`SITE_TOLERANCE_KM`](crate::ingest::SITE_TOLERANCE_KM).
+    pub site_tolerance_km: Option<f64>,
+    /// Quantities whose empty or fill-value cells, in a column the workbook provides, may
+    /// take the site, job or built-in value (`[input] fallback`); `None`: [`DEFAULT_FALLBACK`].
+    pub fallback: Option<Vec<String>>,
+    /// `[atmosphere]` keys the job file writes out, so that a value equal to the built-in
+    /// one is still reported as the job file's.
+    pub defaults_set: Vec<String>,
+}
+
+/// Quantities that may fall back when `[input] fallback` is not given: precipitable water
+/// and ozone are often left blank in campaign files and their defaults are climatological.
+pub const DEFAULT_FALLBACK: &[&str] = &["ozone", "water"];
+
+/// Quantities `[input] fallback` may name: those whose cells can take a value from
+/// elsewhere (the site, the job, the built-in defaults, the other wavelengths).
+pub const FALLBACK_QUANTITIES: &[&str] = &[
+    "angstrom",
+    "aod",
+    "ssa",
+    "asymmetry",
+    "ozone",
+    "water",
+    "pressure",
+    "altitude",
+    "albedo",
+    "layer_top",
+];
+
+impl InputSpec {
+    /// Whether an empty or fill-value cell of `quantity` may take a value from elsewhere.
+    pub fn allows_fallback(&self, quantity: &str) -> bool {
+        match &self.fallback {
+            Some(list) => list.iter().any(|q| q == quantity),
+            None => DEFAULT_FALLBACK.contains(&quantity),
+        }
+    }
 }
 
 /// Where a row came from.
@@ -159,8 +215,31 @@ pub struct MappedColumn {
     pub letter: String,
     /// Unit as found in the units row or header, if any.
     pub unit: String,
-    /// `detected` or `job file`.
+    /// `detected`, `job file` or `site table`.
     pub how: String,
+    /// For the Ångström exponent: the wavelength pair it spans, from the header or the units
+    /// row [nm] (`[440, 870]`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub wavelength_pair_nm: Option<[f64; 2]>,
+}
+
+/// A header column that was not read, and why.
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
+pub struct IgnoredColumn {
+    pub file: String,
+    pub sheet: String,
+    /// Column letter(s), e.g. `K`.
+    pub letter: String,
+    /// Header text as found (empty for a column without a header).
+    pub header: String,
+    /// Why it is not read.
+    pub reason: String,
+    /// `true` when the job file's `ignore_columns` names it.
+    #[serde(default)]
+    pub declared: bool,
+    /// Quantities that fell back to a default while this header resembles them.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub resembles: Vec<String>,
 }
 
 /// Where an assumed value came from.
@@ -181,6 +260,20 @@ pub struct Assumption {
     pub source: ValueSource,
     /// How many computed rows it applied to.
     pub rows: usize,
+}
+
+/// A site value read from key/value metadata (a metadata sheet or a line above the header),
+/// with the place it came from.
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
+pub struct MetadataValue {
+    /// The site the value belongs to.
+    pub site: String,
+    /// The `[[sites]]` field it fills: `name`, `latitude_deg`, `altitude_m`, ...
+    pub quantity: String,
+    /// The value in canonical units, as text.
+    pub value: String,
+    /// Where it was read: `campaign.xlsx, sheet "Station", cell B2 ("Latitude", "deg N")`.
+    pub origin: String,
 }
 
 /// An input file that was read.
@@ -218,9 +311,31 @@ pub struct Ingested {
     /// File- or sheet-level warnings.
     pub warnings: Vec<String>,
     pub mapping: Vec<MappedColumn>,
+    /// Site values read from key/value metadata, with where each came from.
+    pub metadata: Vec<MetadataValue>,
     pub assumptions: Vec<Assumption>,
     pub files: Vec<InputFile>,
     pub counts: Counts,
+    /// Accepted rows of other sites left out of a report of some sites (one report per site,
+    /// or `--site`); included in `counts.outside_period`, shown beside it on the About sheet.
+    pub other_sites: usize,
+    /// Header columns of data and site sheets that were not read, with the reason.
+    pub ignored: Vec<IgnoredColumn>,
+    /// Columns of site sheets and how they were read.
+    pub site_columns: Vec<MappedColumn>,
+    /// How the rows' sites were found, one line per sheet (site column, one place, places
+    /// by coordinates, moving platform).
+    pub site_rules: Vec<String>,
+    /// Site key → label shown in the report, for sites with a full name:
+    /// `Harlsby Flats (HRF)`.
+    pub site_labels: BTreeMap<String, String>,
+}
+
+impl Ingested {
+    /// The label of a site as the report shows it: `Full Name (KEY)`, or the key.
+    pub fn site_label<'a>(&'a self, site: &'a str) -> &'a str {
+        self.site_labels.get(site).map_or(site, String::as_str)
+    }
 }
 
 /// A problem that stops the run before anything is written.

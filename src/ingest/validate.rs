@@ -5,6 +5,10 @@
 use super::cells::format_number;
 use super::detect::Kind;
 
+/// Largest AOD accepted (common practice: direct-sun photometry saturates well below it, and
+/// `hazebook grid` takes the same bound).
+pub(crate) const MAX_AOD: f64 = 10.0;
+
 /// Outcome of a range check.
 #[derive(Debug, Clone, PartialEq)]
 pub(crate) enum Check {
@@ -16,10 +20,10 @@ pub(crate) enum Check {
 /// Check `value` (already in canonical units) of quantity `kind`. `found` is the cell as the
 /// user wrote it (for the message).
 ///
-/// Ranges: AOD ≥ 0 (warning above 3), SSA in (0, 1], g in [−1, 1] (warning outside
+/// Ranges: AOD in [0, 10] (warning above 3), SSA in (0, 1], g in [−1, 1] (warning outside
 /// [0.3, 0.9]), albedo in [0, 1], latitude in [−90, 90], longitude in [−180, 360), ozone in
-/// [100, 700] DU, precipitable water in [0, 10] cm, pressure in [300, 1100] hPa: the bounds of
-/// the product brief §5 and common practice. Altitude in [−500, 9000] m, aerosol layer top in
+/// [100, 700] DU, precipitable water in [0, 10] cm, pressure in [300, 1100] hPa: physical bounds
+/// of each quantity (common practice). Altitude in [−500, 9000] m, aerosol layer top in
 /// (0, 20] km, Ångström exponent in [−1, 4] and UTC offsets in [−14, 14] h are common practice.
 pub(crate) fn check(kind: Kind, value: f64, found: &str) -> Check {
     let v = value;
@@ -30,6 +34,11 @@ pub(crate) fn check(kind: Kind, value: f64, found: &str) -> Check {
         Kind::Aod => {
             if v < 0.0 {
                 Check::Reject(format!("expected an AOD ≥ 0, found {found}"))
+            } else if v > MAX_AOD {
+                Check::Reject(format!(
+                    "expected an AOD in [0, {}], found {found}: no sun photometer measures so thick a column, and the row cannot be computed",
+                    format_number(MAX_AOD)
+                ))
             } else if v > 3.0 {
                 Check::Warn(format!(
                     "AOD {} is above 3: unusually high, check the value",
@@ -138,6 +147,42 @@ pub(crate) fn check(kind: Kind, value: f64, found: &str) -> Check {
     }
 }
 
+/// Check a value of a job file's `[[sites]]` or `[atmosphere]` table (key as written there)
+/// with the ranges a workbook value of the same quantity must meet. `Err` holds what was
+/// expected; keys that are not numbers of a quantity pass.
+pub fn check_job_value(key: &str, value: f64) -> Result<(), String> {
+    let kind = match key {
+        "latitude_deg" => Kind::Latitude,
+        "longitude_deg" => Kind::Longitude,
+        "altitude_m" => Kind::Altitude,
+        "pressure_hpa" => Kind::Pressure,
+        "albedo" => Kind::Albedo,
+        "utc_offset_hours" => Kind::UtcOffset,
+        "ozone_du" => Kind::Ozone,
+        "water_cm" => Kind::Water,
+        "layer_top_km" => Kind::LayerTop,
+        "angstrom" => Kind::Angstrom,
+        "layer_base_km" => {
+            return if value.is_finite() && (0.0..20.0).contains(&value) {
+                Ok(())
+            } else {
+                Err(format!(
+                    "expected a number in [0, 20) km, found {}",
+                    format_number(value)
+                ))
+            };
+        }
+        _ => return Ok(()),
+    };
+    if !value.is_finite() {
+        return Err(format!("expected a finite number, found {value}"));
+    }
+    match check(kind, value, &format_number(value)) {
+        Check::Reject(why) => Err(why),
+        _ => Ok(()),
+    }
+}
+
 fn range(v: f64, lo: f64, hi: f64, hi_inclusive: bool, text: &str, found: &str) -> Check {
     let ok = v >= lo && if hi_inclusive { v <= hi } else { v < hi };
     if ok {
@@ -145,6 +190,64 @@ fn range(v: f64, lo: f64, hi: f64, hi_inclusive: bool, text: &str, found: &str) 
     } else {
         Check::Reject(format!("expected a number in {text}, found {found}"))
     }
+}
+
+/// Check a resolved observation against the same ranges as the cells it is read from (for
+/// observations that come from elsewhere than a workbook, such as a partial-results bundle
+/// given to `hazebook merge`). Returns the first problem, naming the quantity.
+pub fn check_observation(o: &crate::physics::Observation) -> Result<(), String> {
+    use crate::physics::Surface;
+    let mut values: Vec<(Kind, f64)> = vec![
+        (Kind::Latitude, o.latitude_deg),
+        (Kind::Longitude, o.longitude_deg),
+        (Kind::Altitude, o.altitude_m),
+        (Kind::Aod, o.aod),
+        (Kind::Angstrom, o.angstrom),
+        (Kind::Ozone, o.ozone_du),
+        (Kind::Water, o.water_cm),
+        (Kind::LayerTop, o.layer.top_km),
+    ];
+    if let Some(p) = o.pressure_hpa {
+        values.push((Kind::Pressure, p));
+    }
+    if let Surface::Lambertian { albedo } = o.surface {
+        values.push((Kind::Albedo, albedo));
+    }
+    if o.ssa.is_empty() || o.asymmetry.is_empty() {
+        return Err("no single-scattering albedo or asymmetry factor".into());
+    }
+    values.extend(o.ssa.iter().map(|v| (Kind::Ssa, v.value)));
+    values.extend(o.asymmetry.iter().map(|v| (Kind::Asymmetry, v.value)));
+    for (kind, v) in values {
+        let found = format_number(v);
+        if !v.is_finite() {
+            return Err(format!(
+                "{}: expected a finite number, found {found}",
+                kind.name()
+            ));
+        }
+        if let Check::Reject(m) = check(kind, v, &found) {
+            return Err(format!("{}: {m}", kind.name()));
+        }
+    }
+    let wavelengths = std::iter::once(o.aod_wavelength_nm)
+        .chain(o.ssa.iter().chain(&o.asymmetry).map(|v| v.wavelength_nm));
+    for w in wavelengths {
+        if !(w.is_finite() && w > 0.0) {
+            return Err(format!(
+                "wavelength: expected a positive number of nm, found {}",
+                format_number(w)
+            ));
+        }
+    }
+    if !(o.layer.base_km >= 0.0 && o.layer.base_km < o.layer.top_km) {
+        return Err(format!(
+            "aerosol layer: expected 0 ≤ base < top, found base {} km, top {} km",
+            format_number(o.layer.base_km),
+            format_number(o.layer.top_km)
+        ));
+    }
+    Ok(())
 }
 
 #[cfg(test)]
@@ -165,6 +268,8 @@ mod tests {
         }
         assert!(matches!(check(Kind::Aod, 3.5, "3.5"), Check::Warn(_)));
         assert!(matches!(check(Kind::Aod, -0.01, "-0.01"), Check::Reject(_)));
+        assert!(matches!(check(Kind::Aod, 1e308, "1e308"), Check::Reject(_)));
+        assert!(matches!(check(Kind::Aod, 10.0, "10"), Check::Warn(_)));
         assert!(matches!(
             check(Kind::Asymmetry, 0.95, "0.95"),
             Check::Warn(_)

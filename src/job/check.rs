@@ -9,9 +9,24 @@ use crate::ingest;
 
 /// Read and validate; print the mapping, warnings and rejected rows (or one JSON document).
 pub fn check(a: &CheckArgs) -> anyhow::Result<Status> {
-    let result = plan::build(&a.select, &Overrides::default())
-        .and_then(|p| ingest::read_inputs(&p.spec).map_err(anyhow::Error::from));
-    let ing = match result {
+    let result = plan::build(&a.select, &Overrides::default()).and_then(|p| {
+        let ing = ingest::read_inputs(&p.spec)?;
+        // As `run` does: a file with a header and no data rows has nothing to compute.
+        if ing.counts.read == 0 {
+            let inputs: Vec<String> = p
+                .spec
+                .paths
+                .iter()
+                .map(|p| p.display().to_string())
+                .collect();
+            anyhow::bail!(
+                "{}: no data rows found under the header; nothing to compute",
+                inputs.join(", ")
+            );
+        }
+        Ok((p, ing))
+    });
+    let (plan, ing) = match result {
         Ok(i) => i,
         Err(e) => {
             if a.json {
@@ -22,15 +37,25 @@ pub fn check(a: &CheckArgs) -> anyhow::Result<Status> {
             return Err(e);
         }
     };
-    let status = if ing.rejected.is_empty() {
+    let strict = ingest::strict_problems(&ing, &plan.spec);
+    let strict_on = plan.spec.strict;
+    let refused = strict_on && !strict.is_empty();
+    let status = if refused {
+        Status::Failed
+    } else if ing.rejected.is_empty() {
         Status::Success
     } else {
         Status::SuccessWithRejected
     };
     if a.json {
         let doc = json!({
-            "ok": true,
+            "ok": !refused,
             "files": ing.files,
+            "columns": ing.column_accounts(),
+            "ignored_columns": ing.ignored,
+            "site_columns": ing.site_columns,
+            "sites": { "rules": ing.site_rules, "labels": ing.site_labels },
+            "strict": { "enabled": strict_on, "problems": strict },
             "mapping": ing.mapping,
             "assumptions": ing.assumptions,
             "counts": ing.counts,
@@ -52,7 +77,11 @@ pub fn check(a: &CheckArgs) -> anyhow::Result<Status> {
     }
     let warned: usize = ing.row_warnings.iter().filter(|w| !w.is_empty()).count();
     if warned > 0 {
-        println!("{warned} rows carry warnings (listed on the report's Results sheet):");
+        println!(
+            "{} {} warnings (listed on the report's Results sheet):",
+            ingest::rows_text(warned),
+            if warned == 1 { "carries" } else { "carry" }
+        );
         for (ws, o) in ing
             .row_warnings
             .iter()
@@ -65,6 +94,11 @@ pub fn check(a: &CheckArgs) -> anyhow::Result<Status> {
             }
         }
     }
+    if refused {
+        println!("{}", summary::strict_refusal(&strict));
+        println!("a strict run would fail (exit status 2) and write nothing");
+        return Ok(status);
+    }
     if ing.rejected.is_empty() {
         println!("ok: a run would compute every row");
     } else {
@@ -73,8 +107,8 @@ pub fn check(a: &CheckArgs) -> anyhow::Result<Status> {
             println!("{l}");
         }
         println!(
-            "a run would compute {} rows and list {} on the Rejected sheet (exit status 1)",
-            ing.counts.computed,
+            "a run would compute {} and list {} on the Rejected sheet (exit status 1)",
+            ingest::rows_text(ing.counts.computed),
             ing.rejected.len()
         );
     }

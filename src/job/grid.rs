@@ -1,7 +1,7 @@
 //! `hazebook grid`: idealised sensitivity tables over the Cartesian product of AOD, SSA, g,
 //! albedo and cos(solar zenith) (or latitude and date for 24-hour means).
 //!
-//! By default the idealised switches of the brief apply: one band at the reference wavelength
+//! By default the idealised switches apply (README, "Usage"): one band at the reference wavelength
 //! carrying the whole solar constant, Rayleigh and gases off, no Earth–Sun distance
 //! correction for fixed-zenith cases. The CSV carries every input of each case and the
 //! fluxes at full precision (the shortest decimal that reads back to the same double).
@@ -14,7 +14,8 @@ use chrono::{NaiveDate, TimeZone, Utc};
 use rayon::prelude::*;
 
 use super::output::write_atomic;
-use crate::cli::{GridArgs, Status};
+use crate::cli::{GridArgs, SolverArg, Status};
+use crate::physics::discrete_ordinates::MAX_STREAMS;
 use crate::physics::forcing::{Context, compute_observation};
 use crate::physics::{
     AerosolLayer, BandSet, Effect, Fluxes, Observation, ObservationResult, Settings, SpectralValue,
@@ -75,6 +76,50 @@ fn check_list(name: &str, v: &[f64], lo: f64, hi: f64, lo_open: bool) -> anyhow:
     Ok(())
 }
 
+/// Most cases of one table (the product of the list lengths).
+const MAX_CASES: usize = 1_000_000;
+
+/// The single-valued options, with the ranges of the job file's `[solver]` and
+/// `[atmosphere]` values, and the size of the product.
+fn check_scalars(a: &GridArgs) -> anyhow::Result<()> {
+    let s = a.solar_constant;
+    if !(s.is_finite() && (1000.0..=1500.0).contains(&s)) {
+        bail!(
+            "--solar-constant {s}: expected a value in 1000–1500 W m⁻² (about 1361 today, Kopp & Lean 2011)"
+        );
+    }
+    for (name, key, v) in [
+        ("angstrom", "angstrom", a.angstrom),
+        ("ozone-du", "ozone_du", a.ozone_du),
+        ("water-cm", "water_cm", a.water_cm),
+        ("pressure-hpa", "pressure_hpa", a.pressure_hpa),
+    ] {
+        if let Err(why) = crate::ingest::check_job_value(key, v) {
+            bail!("--{name} {v}: {why}");
+        }
+    }
+    let geometry = if a.latitude.is_empty() && a.date.is_empty() {
+        a.mu0.len().max(if a.mu0.is_empty() { 4 } else { 1 })
+    } else {
+        a.latitude.len().max(1).saturating_mul(a.date.len().max(1))
+    };
+    let n = [
+        a.aod.len(),
+        a.ssa.len(),
+        a.g.len(),
+        a.albedo.len(),
+        geometry,
+    ]
+    .into_iter()
+    .fold(1usize, |p, k| p.saturating_mul(k));
+    if n > MAX_CASES {
+        bail!(
+            "the lists make {n} cases, more than the {MAX_CASES} of one table: split the grid into several runs"
+        );
+    }
+    Ok(())
+}
+
 fn cases(a: &GridArgs) -> anyhow::Result<Vec<Case>> {
     check_list("aod", &a.aod, 0.0, 10.0, false)?;
     check_list("ssa", &a.ssa, 0.0, 1.0, true)?;
@@ -83,6 +128,16 @@ fn cases(a: &GridArgs) -> anyhow::Result<Vec<Case>> {
     if !(a.wavelength.is_finite() && (280.0..=4000.0).contains(&a.wavelength)) {
         bail!("--wavelength {}: expected 280–4000 nm", a.wavelength);
     }
+    if !(2..=MAX_STREAMS).contains(&a.streams) || !a.streams.is_multiple_of(2) {
+        bail!(
+            "--streams {}: expected an even number from 2 to {MAX_STREAMS}",
+            a.streams
+        );
+    }
+    if let Some(t) = a.rayleigh_above {
+        check_list("rayleigh-above", &[t], 0.0, 10.0, false)?;
+    }
+    check_scalars(a)?;
     let daily = !a.latitude.is_empty() || !a.date.is_empty();
     let geometry: Vec<(Option<f64>, Option<f64>, Option<NaiveDate>)> = if daily {
         if a.latitude.is_empty() || a.date.is_empty() {
@@ -124,6 +179,9 @@ fn cases(a: &GridArgs) -> anyhow::Result<Vec<Case>> {
         },
         rayleigh: a.rayleigh,
         gases: a.gases,
+        method: a.solver.into(),
+        streams: a.streams,
+        rayleigh_above_tau: a.rayleigh_above,
         ..Settings::default()
     };
     let mut out = Vec::new();
@@ -200,6 +258,13 @@ fn flux_values(f: &Fluxes) -> [f64; 7] {
     ]
 }
 
+/// A command-line value as the command line spells it.
+fn spelled(v: &impl clap::ValueEnum) -> String {
+    v.to_possible_value()
+        .map(|p| p.get_name().to_string())
+        .unwrap_or_default()
+}
+
 fn to_csv(a: &GridArgs, cases: &[Case], results: &[ObservationResult]) -> String {
     let mut s = String::new();
     let mut header = vec![
@@ -216,12 +281,15 @@ fn to_csv(a: &GridArgs, cases: &[Case], results: &[ObservationResult]) -> String
         "date",
         "solar_constant_wm2",
         "closure",
+        "solver",
+        "streams",
         "band_set",
         "rayleigh",
         "gases",
         "ozone_du",
         "water_cm",
         "pressure_hpa",
+        "rayleigh_above_tau",
         "solar_zenith_deg",
         "aod_550",
     ]
@@ -275,13 +343,20 @@ fn to_csv(a: &GridArgs, cases: &[Case], results: &[ObservationResult]) -> String
             c.latitude.map(num).unwrap_or_default(),
             c.date.map(|d| d.to_string()).unwrap_or_default(),
             num(c.settings.solar_constant_wm2),
-            format!("{:?}", c.settings.closure),
-            format!("{:?}", c.settings.band_set),
+            spelled(&a.closure),
+            spelled(&a.solver),
+            if a.solver == SolverArg::DiscreteOrdinates {
+                a.streams.to_string()
+            } else {
+                String::new()
+            },
+            if a.spectral { "spectral" } else { "single" }.into(),
             c.settings.rayleigh.to_string(),
             c.settings.gases.to_string(),
             num(a.ozone_du),
             num(a.water_cm),
             num(a.pressure_hpa),
+            a.rayleigh_above.map(num).unwrap_or_default(),
             if daily {
                 String::new()
             } else {

@@ -22,9 +22,11 @@ use std::path::{Path, PathBuf};
 use anyhow::{Context as _, bail};
 
 use super::log::Log;
-use super::output::{FolderLock, NameTokens, expand_name, overwrites_input};
+use super::output::{self, FolderLock, NameTokens, Staged, expand_name};
 use super::partial::{self, Bundle};
-use super::run::{created_time, site_filter_note};
+use super::run::{
+    created_time, named, report_stale, site_filter_note, staging_error, template_file,
+};
 use crate::cli::{MergeArgs, Status};
 use crate::ingest::{Assumption, Counts, Ingested, InputFile, Rejection};
 use crate::physics::ObservationResult;
@@ -35,7 +37,7 @@ pub const DEFAULT_MERGED_NAME: &str = "{job}-merged-report.xlsx";
 
 /// Merge partial results into one report; errors are also written to the log file.
 pub fn merge(a: &MergeArgs) -> anyhow::Result<Status> {
-    let log = Log::new(a.outputs.quiet, a.outputs.log.as_deref())?;
+    let log = Log::new(a.outputs.quiet, a.outputs.log.as_deref(), &a.bundles)?;
     log.outcome("merge", merge_inner(a, &log))
 }
 
@@ -43,10 +45,24 @@ fn merge_inner(a: &MergeArgs, log: &Log) -> anyhow::Result<Status> {
     let today = super::period::parse_today(a.today.as_deref()).map_err(anyhow::Error::msg)?;
     refuse_repeats(&a.bundles)?;
     let mut bundles = Vec::with_capacity(a.bundles.len());
+    let mut states = Vec::with_capacity(a.bundles.len());
     for p in &a.bundles {
-        bundles.push(partial::read(p)?);
+        let (b, state) = partial::read_checked(p)?;
+        bundles.push(b);
+        states.push(state);
     }
     check_compatible(&a.bundles, &bundles)?;
+    // Edited results and values a run would reject are refused, after the compatibility
+    // checks (whose messages say more about bundles of different runs).
+    for ((p, b), state) in a.bundles.iter().zip(&bundles).zip(states) {
+        let path = p.display().to_string();
+        match state {
+            partial::Integrity::Intact => {}
+            partial::Integrity::Edited => bail!(partial::PartialError::Edited { path }),
+            partial::Integrity::Missing => bail!(partial::PartialError::NoDigest { path }),
+        }
+        partial::validate(p, b)?;
+    }
     let merged = join(&a.bundles, &bundles)?;
     let first = &bundles[0];
     log.info(&format!(
@@ -83,27 +99,23 @@ fn merge_inner(a: &MergeArgs, log: &Log) -> anyhow::Result<Status> {
     )
     .map_err(anyhow::Error::msg)?;
 
-    std::fs::create_dir_all(&out_dir)
-        .with_context(|| format!("{}: cannot create the output folder", out_dir.display()))?;
-    let _lock = FolderLock::acquire(&out_dir)
-        .with_context(|| format!("{}: cannot lock the output folder", out_dir.display()))?;
     let path = out_dir.join(name);
-    let side = a.outputs.side_output.map(SideFormat::from).map(|f| {
-        let ext = match f {
-            SideFormat::Csv => "csv",
-            SideFormat::Parquet => "parquet",
-        };
-        (f, path.with_extension(ext))
-    });
-    for target in std::iter::once(&path).chain(side.as_ref().map(|(_, p)| p)) {
-        if let Some(input) = overwrites_input(target, &a.bundles) {
-            bail!(
-                "{}: the output would overwrite the partial results {}; choose another --out folder or --output name",
-                target.display(),
-                input.display()
-            );
+    let side = a
+        .outputs
+        .side_output
+        .map(SideFormat::from)
+        .map(|f| (f, path.with_extension(f.extension())));
+    let mut outputs: Vec<(&str, PathBuf)> = vec![("report", path.clone())];
+    if let Some((f, p)) = &side {
+        for file in report::side_files(p, *f) {
+            outputs.push(("side output", file));
         }
     }
+    let mut inputs = a.bundles.clone();
+    inputs.extend(template_file(&template_name));
+    log.add_inputs(&inputs);
+    output::check_outputs(&outputs, &inputs).map_err(anyhow::Error::msg)?;
+    log.confirm(&outputs)?;
 
     let version = if first.hazebook_version == env!("CARGO_PKG_VERSION") {
         first.hazebook_version.clone()
@@ -130,12 +142,38 @@ fn merge_inner(a: &MergeArgs, log: &Log) -> anyhow::Result<Status> {
         mapping: &merged.ingested.mapping,
         about,
     };
-    report::write_report(&path, &tpl, &input)?;
-    let mut written = vec![path];
-    if let Some((fmt, side)) = side {
-        report::write_side_output(&side, fmt, &input)?;
-        written.push(side);
+    if side.as_ref().is_some_and(|(f, _)| *f == SideFormat::Netcdf) && input.results.is_empty() {
+        bail!(
+            "the bundles hold no computed row: the NetCDF side output needs at least one; nothing written. Rerun without --side-output netcdf"
+        );
     }
+    std::fs::create_dir_all(&out_dir)
+        .with_context(|| format!("{}: cannot create the output folder", out_dir.display()))?;
+    let lock = FolderLock::acquire(&out_dir)
+        .with_context(|| format!("{}: cannot lock the output folder", out_dir.display()))?;
+    report_stale(&lock, log);
+    let mut staged = Staged::new();
+    let tmp = staged.add(&path).with_context(|| staging_error(&path))?;
+    report::write_report(&tmp, &tpl, &input).map_err(|e| named(e, &path, "report"))?;
+    if let Some((fmt, side)) = &side {
+        let meta = report::SideMeta {
+            command: Some(report::side::command_line()),
+            // The runs' job file, when they had one, names the institution.
+            institution: input
+                .about
+                .job_text
+                .as_deref()
+                .and_then(|t| toml::from_str::<super::config::JobFile>(t).ok())
+                .and_then(|j| j.report.institution),
+        };
+        let mut tmps = Vec::new();
+        for f in report::side_files(side, *fmt) {
+            tmps.push(staged.add(&f).with_context(|| staging_error(&f))?);
+        }
+        report::write_side_staged(&tmps, side, *fmt, &input, &meta)
+            .map_err(|e| named(e, side, "side output"))?;
+    }
+    let written = staged.commit()?;
     for p in &written {
         println!("{}", p.display());
         log.info(&format!("wrote {}", p.display()));
@@ -307,7 +345,15 @@ fn join(paths: &[PathBuf], bundles: &[Bundle]) -> anyhow::Result<Merged> {
 
     let mut mapping = Vec::new();
     let mut file_warnings = Vec::new();
+    let (mut ignored, mut site_columns, mut site_rules) = (Vec::new(), Vec::new(), Vec::new());
+    let mut site_labels = BTreeMap::new();
     for b in bundles {
+        push_new(&mut ignored, &b.ignored);
+        push_new(&mut site_columns, &b.site_columns);
+        push_new(&mut site_rules, &b.site_rules);
+        for (k, v) in &b.site_labels {
+            site_labels.entry(k.clone()).or_insert_with(|| v.clone());
+        }
         for m in &b.mapping {
             if !mapping.contains(m) {
                 mapping.push(m.clone());
@@ -387,9 +433,16 @@ fn join(paths: &[PathBuf], bundles: &[Bundle]) -> anyhow::Result<Merged> {
         rejected: rejected.into_iter().map(|(_, r)| r.clone()).collect(),
         warnings: file_warnings,
         mapping,
+        // Where metadata-sheet values came from is said by each partition's run.
+        metadata: Vec::new(),
         assumptions,
         files,
         counts,
+        other_sites: 0,
+        ignored,
+        site_columns,
+        site_rules,
+        site_labels,
     };
     Ok(Merged {
         results: rows.iter().map(|(_, r)| r.result).collect(),
@@ -480,4 +533,13 @@ fn notes(
         parts.join("; ")
     ));
     v
+}
+
+/// Append the items of `new` that `list` does not hold yet, in order.
+fn push_new<T: Clone + PartialEq>(list: &mut Vec<T>, new: &[T]) {
+    for x in new {
+        if !list.contains(x) {
+            list.push(x.clone());
+        }
+    }
 }

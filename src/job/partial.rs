@@ -8,12 +8,14 @@
 //! reproduce the single run's report exactly ([`crate::physics::serde_float`]). See
 //! DEVELOPERS.md for the fields.
 
+use std::collections::BTreeMap;
 use std::path::Path;
 
 use chrono::{DateTime, Utc};
 
 use crate::ingest::{
-    Assumption, Counts, InputFile, MappedColumn, Period, Rejection, RowOrigin, RowWarning,
+    Assumption, Counts, IgnoredColumn, InputFile, MappedColumn, Period, Rejection, RowOrigin,
+    RowWarning,
 };
 use crate::physics::{Observation, ObservationResult, Settings};
 
@@ -86,6 +88,36 @@ pub struct Bundle {
     pub counts: Counts,
     /// Rows left out by the site filter (included in `counts.outside_period`).
     pub outside_site: usize,
+    /// Header columns not read, with the reason (absent in older bundles).
+    #[serde(default)]
+    pub ignored: Vec<IgnoredColumn>,
+    /// Site-sheet columns and how they were read.
+    #[serde(default)]
+    pub site_columns: Vec<MappedColumn>,
+    /// How the sites of each sheet were found.
+    #[serde(default)]
+    pub site_rules: Vec<String>,
+    /// Site key → report label (`Harlsby Flats (HRF)`).
+    #[serde(default)]
+    pub site_labels: BTreeMap<String, String>,
+    /// Lower-case hex SHA-256 of the bundle's bytes before this field, which the writer
+    /// appends last ([`to_bytes`]); checked by [`read_checked`] so that edited results are
+    /// noticed. Never serialised by serde.
+    #[serde(default, skip_serializing)]
+    pub content_sha256: Option<String>,
+}
+
+/// Name of the digest field, the last of every bundle.
+const DIGEST_FIELD: &str = "content_sha256";
+
+/// Whether a bundle's content still matches the digest it carries.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Integrity {
+    Intact,
+    /// No digest: written by hand or by an earlier hazebook.
+    Missing,
+    /// The bytes do not match the digest: the file was changed after it was written.
+    Edited,
 }
 
 /// A bundle that cannot be read or written.
@@ -105,19 +137,124 @@ pub enum PartialError {
     Damaged { path: String, reason: String },
     #[error("{path}: cannot write the partial results: {reason}")]
     Write { path: String, reason: String },
+    #[error(
+        "{path}: the partial results were changed after they were written (the content no longer matches the SHA-256 recorded in the file); rerun the partition that wrote it"
+    )]
+    Edited { path: String },
+    #[error(
+        "{path}: the partial results carry no content digest (written by hand or by an earlier hazebook); rerun the partition with this version"
+    )]
+    NoDigest { path: String },
+    #[error(
+        "{path}: {place}: {reason}; a run would have rejected this row, so the bundle cannot be merged. Rerun the partition that wrote it"
+    )]
+    Invalid {
+        path: String,
+        place: String,
+        reason: String,
+    },
+}
+
+/// The bytes of a bundle: compact JSON, with the SHA-256 of everything before it appended as
+/// the last field ([`Bundle::content_sha256`]), and a final newline.
+///
+/// Errors: [`PartialError::Write`] when the bundle cannot be serialised.
+pub fn to_bytes(path: &Path, bundle: &Bundle) -> Result<Vec<u8>, PartialError> {
+    let err = |reason: String| PartialError::Write {
+        path: path.display().to_string(),
+        reason,
+    };
+    let mut bytes = serde_json::to_vec(bundle).map_err(|e| err(e.to_string()))?;
+    let hex = sha256_hex(&bytes);
+    if bytes.pop() != Some(b'}') {
+        return Err(err("the bundle is not a JSON object".into()));
+    }
+    bytes.extend_from_slice(format!(",\"{DIGEST_FIELD}\":\"{hex}\"}}\n").as_bytes());
+    Ok(bytes)
 }
 
 /// Write a bundle atomically (temporary file in the same folder, then rename).
 ///
 /// Errors: [`PartialError::Write`] when the folder is not writable.
 pub fn write(path: &Path, bundle: &Bundle) -> Result<(), PartialError> {
-    let err = |reason: String| PartialError::Write {
+    let bytes = to_bytes(path, bundle)?;
+    super::output::write_atomic(path, &bytes).map_err(|e| PartialError::Write {
         path: path.display().to_string(),
-        reason,
+        reason: e.to_string(),
+    })
+}
+
+fn sha256_hex(bytes: &[u8]) -> String {
+    use sha2::Digest;
+    sha2::Sha256::digest(bytes)
+        .iter()
+        .map(|b| format!("{b:02x}"))
+        .collect()
+}
+
+/// Whether `bytes` still hash to the digest `stated` that ends them.
+fn integrity(bytes: &[u8], stated: Option<&str>) -> Integrity {
+    let Some(stated) = stated else {
+        return Integrity::Missing;
     };
-    let mut bytes = serde_json::to_vec(bundle).map_err(|e| err(e.to_string()))?;
-    bytes.push(b'\n');
-    super::output::write_atomic(path, &bytes).map_err(|e| err(e.to_string()))
+    let text = bytes.trim_ascii_end();
+    let marker = format!(",\"{DIGEST_FIELD}\":\"");
+    let tail = format!("{marker}{stated}\"}}");
+    let Some(body) = text.strip_suffix(tail.as_bytes()) else {
+        return Integrity::Edited;
+    };
+    let mut body = body.to_vec();
+    body.push(b'}');
+    if sha256_hex(&body) == stated {
+        Integrity::Intact
+    } else {
+        Integrity::Edited
+    }
+}
+
+/// Check every observation of a bundle as the reader checks cells (ranges, finite values),
+/// and that its counts fit its rows.
+///
+/// Errors: [`PartialError::Invalid`] naming the row.
+pub fn validate(path: &Path, bundle: &Bundle) -> Result<(), PartialError> {
+    let p = path.display().to_string();
+    for r in &bundle.rows {
+        if let Err(reason) = crate::ingest::check_observation(&r.observation) {
+            let place = if r.origin.sheet.is_empty() {
+                format!("{}, row {}", r.origin.file, r.origin.row)
+            } else {
+                format!(
+                    "{}, sheet \"{}\", row {}",
+                    r.origin.file, r.origin.sheet, r.origin.row
+                )
+            };
+            return Err(PartialError::Invalid {
+                path: p,
+                place,
+                reason,
+            });
+        }
+    }
+    let c = bundle.counts;
+    if c.computed != bundle.rows.len()
+        || c.rejected != bundle.rejected.len()
+        || c.read != c.computed + c.rejected + c.outside_period
+    {
+        return Err(PartialError::Invalid {
+            path: p,
+            place: "counts".into(),
+            reason: format!(
+                "{} rows, {} rejected rows, but counts read {} = computed {} + rejected {} + outside {}",
+                bundle.rows.len(),
+                bundle.rejected.len(),
+                c.read,
+                c.computed,
+                c.rejected,
+                c.outside_period
+            ),
+        });
+    }
+    Ok(())
 }
 
 /// Read a bundle, checking its format tag and version first so that a wrong file gets a
@@ -126,6 +263,12 @@ pub fn write(path: &Path, bundle: &Bundle) -> Result<(), PartialError> {
 /// Errors: [`PartialError::Unreadable`] (missing file), [`PartialError::NotABundle`],
 /// [`PartialError::Version`], [`PartialError::Damaged`] (truncated or edited).
 pub fn read(path: &Path) -> Result<Bundle, PartialError> {
+    read_checked(path).map(|(b, _)| b)
+}
+
+/// [`read`], also telling whether the content still matches its digest (the caller decides
+/// when to refuse, after its own checks of compatibility).
+pub fn read_checked(path: &Path) -> Result<(Bundle, Integrity), PartialError> {
     let p = path.display().to_string();
     let bytes = std::fs::read(path).map_err(|e| PartialError::Unreadable {
         path: p.clone(),
@@ -159,10 +302,12 @@ pub fn read(path: &Path) -> Result<Bundle, PartialError> {
         Some(found) => return Err(PartialError::Version { path: p, found }),
         None => return Err(PartialError::NotABundle { path: p }),
     }
-    serde_json::from_slice(&bytes).map_err(|e| PartialError::Damaged {
+    let bundle: Bundle = serde_json::from_slice(&bytes).map_err(|e| PartialError::Damaged {
         path: p,
         reason: e.to_string(),
-    })
+    })?;
+    let state = integrity(&bytes, bundle.content_sha256.as_deref());
+    Ok((bundle, state))
 }
 
 #[cfg(test)]
@@ -252,6 +397,7 @@ mod tests {
                 ..Flags::default()
             },
             uncertainty: None,
+            solver_error: Default::default(),
         };
         let s = serde_json::to_string(&r).unwrap();
         let back: ObservationResult = serde_json::from_str(&s).unwrap();

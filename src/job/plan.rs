@@ -26,6 +26,9 @@ pub struct Plan {
     pub side_output: Option<SideFormat>,
     pub period: Option<Period>,
     pub today: NaiveDate,
+    /// Inputs found by a glob pattern of `[input] paths` (not named one by one): a run skips
+    /// those that are hazebook's own outputs.
+    pub globbed: Vec<PathBuf>,
 }
 
 /// Command-line values that override the job file.
@@ -65,6 +68,7 @@ pub fn build(select: &SelectArgs, ov: &Overrides) -> anyhow::Result<Plan> {
         from_workbook(&select.input)
     };
     plan.today = today;
+    plan.spec.strict |= select.strict;
     plan.spec.period = period.clone();
     plan.period = period;
     if let Some(t) = &ov.template {
@@ -94,6 +98,7 @@ fn from_workbook(path: &Path) -> Plan {
         side_output: None,
         period: None,
         today: Utc::now().date_naive(),
+        globbed: Vec::new(),
     }
 }
 
@@ -107,6 +112,7 @@ fn from_job(job: LoadedJob) -> anyhow::Result<Plan> {
         );
     }
     let mut paths = Vec::new();
+    let mut globbed = Vec::new();
     for pattern in &f.input.paths {
         let full = dir.join(pattern);
         let text = full.to_string_lossy().into_owned();
@@ -122,6 +128,7 @@ fn from_job(job: LoadedJob) -> anyhow::Result<Plan> {
                     dir.display()
                 );
             }
+            globbed.extend(found.iter().cloned());
             paths.extend(found);
         } else {
             if !full.exists() {
@@ -149,6 +156,17 @@ fn from_job(job: LoadedJob) -> anyhow::Result<Plan> {
         sites: f.sites.clone(),
         defaults: f.atmosphere.clone(),
         period: None,
+        fallback: f
+            .input
+            .fallback_checked()
+            .map_err(|m| anyhow::anyhow!("{where_}: {m}"))?,
+        defaults_set: super::config::atmosphere_keys(&job.text),
+        strict: f.input.strict,
+        ignore_columns: f.input.ignore_columns.clone(),
+        defaults_allowed: f.input.defaults_allowed.clone(),
+        site_name: f.input.site_name.clone(),
+        moving_platform: f.input.moving_platform,
+        site_tolerance_km: f.input.site_tolerance_km,
     };
     let template = if f.report.template.ends_with(".toml") || f.report.template.contains('/') {
         dir.join(&f.report.template).to_string_lossy().into_owned()
@@ -172,5 +190,6 @@ fn from_job(job: LoadedJob) -> anyhow::Result<Plan> {
         period: None,
         today: Utc::now().date_naive(),
         job: Some(job),
+        globbed,
     })
 }

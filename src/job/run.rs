@@ -9,7 +9,10 @@ use chrono::{DateTime, TimeZone, Utc};
 use polars::prelude::{BooleanChunked, NewChunkedArray};
 
 use super::log::Log;
-use super::output::{FolderLock, NameTokens, expand_name, overwrites_input};
+use super::output::{
+    self, FolderLock, NameTokens, Staged, expand_name, own_output_kind, same_file, site_file_names,
+    token_value,
+};
 use super::partial;
 use super::plan::{self, Overrides, Plan};
 use super::summary;
@@ -18,7 +21,7 @@ use crate::ingest::{self, Ingested};
 use crate::physics::ObservationResult;
 use crate::physics::forcing::{Context, compute_batch_with_context};
 use crate::physics::uncertainty::propagate_batch;
-use crate::report::{self, About, ReportInput, SideFormat, WriteOptions, template};
+use crate::report::{self, About, ReportInput, SideFormat, SideMeta, WriteOptions, template};
 
 /// Above this many results the workbook is compressed faster (zip level 1): most of a large
 /// write is deflate, and level 1 writes 100,000 results about 40 % faster for a file about a
@@ -31,7 +34,11 @@ const CHUNK: usize = 4096;
 
 /// Run the main job; errors are also written to the log file.
 pub fn run(a: &RunArgs) -> anyhow::Result<Status> {
-    let log = Log::new(a.outputs.quiet, a.outputs.log.as_deref())?;
+    let log = Log::new(
+        a.outputs.quiet,
+        a.outputs.log.as_deref(),
+        std::slice::from_ref(&a.select.input),
+    )?;
     log.outcome("run", run_inner(a, &log))
 }
 
@@ -41,7 +48,7 @@ fn run_inner(a: &RunArgs, log: &Log) -> anyhow::Result<Status> {
         out: a.out.clone(),
         side_output: a.outputs.side_output.map(Into::into),
     };
-    let plan = plan::build(&a.select, &ov)?;
+    let mut plan = plan::build(&a.select, &ov)?;
     let mut tpl = template::load(&plan.template)?;
     let uncertainty = plan
         .job
@@ -77,6 +84,11 @@ fn run_inner(a: &RunArgs, log: &Log) -> anyhow::Result<Status> {
         log.info("no job file: built-in defaults and header detection (`hazebook init --from <workbook>` pins them in a job file)");
     }
 
+    skip_own_outputs(&mut plan, a.outputs.log.as_deref(), log)?;
+    // What the run reads; no output may be one of these.
+    let inputs = all_inputs(&plan);
+    log.add_inputs(&inputs);
+
     let t = Instant::now();
     let mut ing = ingest::read_inputs(&plan.spec)?;
     let t_read = t.elapsed().as_secs_f64();
@@ -88,12 +100,16 @@ fn run_inner(a: &RunArgs, log: &Log) -> anyhow::Result<Status> {
     }
     if !ing.rejected.is_empty() {
         log.warn(&format!(
-            "{} rows rejected (listed on the Rejected sheet):",
-            ing.rejected.len()
+            "{} rejected (listed on the Rejected sheet):",
+            ingest::rows_text(ing.rejected.len())
         ));
         for l in summary::rejected_lines(&ing, 10) {
             log.warn(&l);
         }
+    }
+    let strict = ingest::strict_problems(&ing, &plan.spec);
+    if plan.spec.strict && !strict.is_empty() {
+        bail!("{}", summary::strict_refusal(&strict));
     }
     if ing.counts.read == 0 {
         bail!(
@@ -110,14 +126,33 @@ fn run_inner(a: &RunArgs, log: &Log) -> anyhow::Result<Status> {
     }
     // Tallied over the rows of the period before the site filter, like ingestion's.
     one_wavelength_assumptions(&mut ing);
-    let outside_site = if a.sites.is_empty() {
+    // File-name forms of the sites, from every site read (before a site filter), so that
+    // partitions of one reading agree and no two sites share an output.
+    let site_names = site_file_names(&ing.sites).map_err(anyhow::Error::msg)?;
+    // A site is asked for by its key (code) or by its full name or label; the key is used.
+    let asked_sites: Vec<String> = a
+        .sites
+        .iter()
+        .map(|s| summary::site_key_for(&ing, s).unwrap_or(s).to_string())
+        .collect();
+    let outside_site = if asked_sites.is_empty() {
         0
     } else {
-        filter_sites(&mut ing, &a.sites, log)?
+        filter_sites(&mut ing, &asked_sites, log)?
     };
 
+    if plan.side_output == Some(SideFormat::Netcdf) && ing.observations.is_empty() {
+        bail!(
+            "every row was rejected: the NetCDF side output needs at least one computed row; nothing written. Fix the rows listed above, or rerun without --side-output netcdf to get the report with its Rejected sheet"
+        );
+    }
     let t = Instant::now();
-    let mut results = compute(&ing, &plan, log);
+    let results = compute(&ing, &plan, log);
+    let before = ing.rejected.len();
+    let mut results = ingest::reject_uncomputable(&mut ing, results, &plan.settings);
+    for r in &ing.rejected[before..] {
+        log.warn(&format!("rejected after the radiative transfer: {r}"));
+    }
     for (o, r) in ing.observations.iter().zip(results.iter_mut()) {
         crate::physics::spectral_flags::refine(o, &plan.settings, &mut r.flags);
     }
@@ -130,15 +165,6 @@ fn run_inner(a: &RunArgs, log: &Log) -> anyhow::Result<Status> {
     }
     let t_physics = t.elapsed().as_secs_f64();
 
-    std::fs::create_dir_all(&plan.out_dir).with_context(|| {
-        format!(
-            "{}: cannot create the output folder",
-            plan.out_dir.display()
-        )
-    })?;
-    let _lock = FolderLock::acquire(&plan.out_dir)
-        .with_context(|| format!("{}: cannot lock the output folder", plan.out_dir.display()))?;
-
     let created = created_time(&ing);
     let tokens = NameTokens {
         job: plan.job_name.clone(),
@@ -146,7 +172,14 @@ fn run_inner(a: &RunArgs, log: &Log) -> anyhow::Result<Status> {
         period: plan.period.as_ref().map(|p| p.label.clone()),
         date: plan.today.format("%Y-%m-%d").to_string(),
     };
-    let site_label = (!a.sites.is_empty()).then(|| a.sites.join("+"));
+    let file_form = |s: &String| site_names.get(s).cloned().unwrap_or_else(|| token_value(s));
+    let site_label = (!asked_sites.is_empty()).then(|| {
+        asked_sites
+            .iter()
+            .map(file_form)
+            .collect::<Vec<_>>()
+            .join("+")
+    });
     let pattern = output_pattern(&plan.output_pattern, site_label.is_some());
     // One report per site only when the output name asks for it.
     let per_site = plan.output_pattern.contains("{site}");
@@ -164,27 +197,76 @@ fn run_inner(a: &RunArgs, log: &Log) -> anyhow::Result<Status> {
     } else {
         vec![(None, vec![true; ing.observations.len()])]
     };
+    // Sites told apart by a suffix, said in the log and on the About sheet.
+    let renamed: Vec<String> = site_names
+        .iter()
+        .filter(|(s, form)| **form != token_value(s) && (per_site || a.sites.contains(s)))
+        .map(|(s, form)| format!("{s:?} as {form}"))
+        .collect();
+    let renamed_note = (!renamed.is_empty()).then(|| {
+        format!(
+            "Sites whose names give the same file name are told apart by a suffix (the first 8 hex digits of the SHA-256 of the name): {}",
+            renamed.join(", ")
+        )
+    });
+    if let Some(n) = &renamed_note {
+        log.warn(n);
+    }
 
-    let mut t_write = 0.0;
-    let mut t_stats = 0.0;
-    let mut written: Vec<PathBuf> = Vec::new();
-    for (site, mask) in groups {
+    // Every output path, checked against the inputs and each other before anything is written.
+    let mut reports = Vec::with_capacity(groups.len());
+    let mut outputs: Vec<(&str, PathBuf)> = Vec::new();
+    for (site, _) in &groups {
         let name = expand_name(
             &pattern,
             &NameTokens {
-                site: site.clone().or_else(|| site_label.clone()),
+                site: site.as_ref().map(file_form).or_else(|| site_label.clone()),
                 ..tokens.clone()
             },
         )
         .map_err(anyhow::Error::msg)?;
         let path = plan.out_dir.join(&name);
-        if let Some(input) = overwrites_input(&path, &plan.spec.paths) {
-            bail!(
-                "{}: the output would overwrite the input {}; choose another --out folder or [report] output name",
-                path.display(),
-                input.display()
-            );
+        outputs.push(("report", path.clone()));
+        if let Some(fmt) = plan.side_output {
+            for f in report::side_files(&path.with_extension(fmt.extension()), fmt) {
+                outputs.push(("side output", f));
+            }
         }
+        reports.push(path);
+    }
+    let bundle_path = if a.partial {
+        let name = expand_name(
+            &pattern,
+            &NameTokens {
+                site: site_label.clone(),
+                ..tokens.clone()
+            },
+        )
+        .map_err(anyhow::Error::msg)?;
+        let path = plan.out_dir.join(name).with_extension("partial.json");
+        outputs.push(("partial results", path.clone()));
+        Some(path)
+    } else {
+        None
+    };
+    output::check_outputs(&outputs, &inputs).map_err(anyhow::Error::msg)?;
+    log.confirm(&outputs)?;
+
+    std::fs::create_dir_all(&plan.out_dir).with_context(|| {
+        format!(
+            "{}: cannot create the output folder",
+            plan.out_dir.display()
+        )
+    })?;
+    let lock = FolderLock::acquire(&plan.out_dir)
+        .with_context(|| format!("{}: cannot lock the output folder", plan.out_dir.display()))?;
+    report_stale(&lock, log);
+
+    // Every output goes to a temporary file first; all are renamed into place at the end.
+    let mut staged = Staged::new();
+    let mut t_write = 0.0;
+    let mut t_stats = 0.0;
+    for ((site, mask), path) in groups.into_iter().zip(&reports) {
         // One report per site needs the site's rows; a single report borrows them all.
         let (sub_ing, sub_res): (Cow<Ingested>, Cow<[ObservationResult]>) = if site.is_some() {
             let (i, r) = subset(&ing, &results, &mask)?;
@@ -200,13 +282,14 @@ fn run_inner(a: &RunArgs, log: &Log) -> anyhow::Result<Status> {
             period: plan.period.as_ref().map(|p| p.label.clone()),
             created_utc: created,
             notes: {
-                let mut n = notes(&plan, site.as_deref(), &a.sites);
+                let mut n = notes(&plan, site.as_deref(), &asked_sites);
                 n.extend(uncertainty_notes.iter().cloned());
                 if sub_res.len() > LARGE_REPORT_ROWS {
                     n.push(format!(
                         "More than {LARGE_REPORT_ROWS} results: the workbook is compressed at zip level {LARGE_REPORT_ZIP_LEVEL} for speed (about a quarter larger than at the default level 6)."
                     ));
                 }
+                n.extend(renamed_note.clone());
                 n
             },
         };
@@ -226,44 +309,40 @@ fn run_inner(a: &RunArgs, log: &Log) -> anyhow::Result<Status> {
             },
             ..WriteOptions::default()
         };
-        report::write_report_with(&path, &tpl, &input, &options)?;
+        let tmp = staged.add(path).with_context(|| staging_error(path))?;
+        report::write_report_with(&tmp, &tpl, &input, &options)
+            .map_err(|e| named(e, path, "report"))?;
         t_write += t.elapsed().as_secs_f64();
-        written.push(path.clone());
         if let Some(fmt) = plan.side_output {
-            let ext = match fmt {
-                SideFormat::Csv => "csv",
-                SideFormat::Parquet => "parquet",
+            let side = path.with_extension(fmt.extension());
+            let meta = SideMeta {
+                command: Some(report::side::command_line()),
+                institution: plan
+                    .job
+                    .as_ref()
+                    .and_then(|j| j.file.report.institution.clone()),
             };
-            let side = path.with_extension(ext);
             let t = Instant::now();
-            report::write_side_output(&side, fmt, &input)?;
+            let mut tmps = Vec::new();
+            for f in report::side_files(&side, fmt) {
+                tmps.push(staged.add(&f).with_context(|| staging_error(&f))?);
+            }
+            report::write_side_staged(&tmps, &side, fmt, &input, &meta)
+                .map_err(|e| named(e, &side, "side output"))?;
             t_stats += t.elapsed().as_secs_f64();
-            written.push(side);
         }
     }
-    if a.partial {
-        let name = expand_name(
-            &pattern,
-            &NameTokens {
-                site: site_label.clone(),
-                ..tokens.clone()
-            },
-        )
-        .map_err(anyhow::Error::msg)?;
-        let path = plan.out_dir.join(name).with_extension("partial.json");
-        if let Some(input) = overwrites_input(&path, &plan.spec.paths) {
-            bail!(
-                "{}: the partial results would overwrite the input {}; choose another --out folder",
-                path.display(),
-                input.display()
-            );
-        }
+    if let Some(path) = &bundle_path {
         let t = Instant::now();
-        let bundle = bundle(&plan, &ing, &results, &a.sites, outside_site);
-        partial::write(&path, &bundle)?;
+        let bundle = bundle(&plan, &ing, &results, &asked_sites, outside_site);
+        let bytes = partial::to_bytes(path, &bundle)?;
+        let tmp = staged.add(path).with_context(|| staging_error(path))?;
+        std::fs::write(&tmp, bytes)
+            .with_context(|| format!("{}: cannot write the partial results", path.display()))?;
         t_write += t.elapsed().as_secs_f64();
-        written.push(path);
     }
+    let written = staged.commit()?;
+    drop(lock);
     for p in &written {
         println!("{}", p.display());
         log.info(&format!("wrote {}", p.display()));
@@ -278,8 +357,8 @@ fn run_inner(a: &RunArgs, log: &Log) -> anyhow::Result<Status> {
     }
     let c = ing.counts;
     log.info(&format!(
-        "done: {} rows computed, {} rejected{}",
-        c.computed,
+        "done: {} computed, {} rejected{}",
+        ingest::rows_text(c.computed),
         c.rejected,
         if c.outside_period > 0 {
             format!(", {} outside the period", c.outside_period)
@@ -336,6 +415,8 @@ fn compute(ing: &Ingested, plan: &Plan, log: &Log) -> Vec<ObservationResult> {
         pb.inc(chunk.len() as u64);
     }
     pb.finish_and_clear();
+    // Rows placed by their date alone have no instantaneous values.
+    ingest::blank_instantaneous(&ing.row_warnings, &mut out);
     out
 }
 
@@ -366,7 +447,11 @@ fn subset(
         row_warnings: pick(&ing.row_warnings, mask),
         ..ing.clone()
     };
+    // The rows of other sites are this report's "outside" rows, so that it reconciles.
+    let left_out = ing.observations.len() - sub.observations.len();
     sub.counts.computed = sub.observations.len();
+    sub.counts.outside_period += left_out;
+    sub.other_sites += left_out;
     Ok((sub, pick(results, mask)))
 }
 
@@ -411,7 +496,11 @@ fn filter_sites(ing: &mut Ingested, sites: &[String], log: &Log) -> anyhow::Resu
     let mut known: Vec<&str> = ing.sites.iter().map(String::as_str).collect();
     known.sort_unstable();
     known.dedup();
-    let known_text = known.join(", ");
+    let known_text = known
+        .iter()
+        .map(|s| ing.site_label(s))
+        .collect::<Vec<_>>()
+        .join(", ");
     let missing: Vec<&str> = sites
         .iter()
         .map(String::as_str)
@@ -438,7 +527,6 @@ fn filter_sites(ing: &mut Ingested, sites: &[String], log: &Log) -> anyhow::Resu
     let removed = ing.sites.len() - kept;
     let (sub, _) = subset(ing, &[], &mask)?;
     *ing = sub;
-    ing.counts.outside_period += removed;
     log.info(&format!(
         "site filter {}: {kept} rows kept, {removed} rows of other sites counted as outside",
         sites.join(", ")
@@ -482,6 +570,95 @@ fn bundle(
         assumptions: ing.assumptions.clone(),
         counts: ing.counts,
         outside_site,
+        ignored: ing.ignored.clone(),
+        site_columns: ing.site_columns.clone(),
+        site_rules: ing.site_rules.clone(),
+        site_labels: ing.site_labels.clone(),
+        content_sha256: None,
+    }
+}
+
+/// Every file a run reads: the inputs, the job file and a template file.
+fn all_inputs(plan: &Plan) -> Vec<PathBuf> {
+    let mut v = plan.spec.paths.clone();
+    v.extend(plan.job.as_ref().map(|j| j.path.clone()));
+    v.extend(template_file(&plan.template));
+    v
+}
+
+/// The template's file, when the template is not a built-in one.
+pub(super) fn template_file(name: &str) -> Option<PathBuf> {
+    let builtin = template::builtin().iter().any(|(n, _, _)| *n == name);
+    (!builtin && std::path::Path::new(name).is_file()).then(|| PathBuf::from(name))
+}
+
+/// Leave out of the inputs the files a glob of `[input] paths` matched that are hazebook's
+/// own outputs (a report, a side output, partial results — judged by content — or the log
+/// file), with a warning naming each. A file named one by one is always read (and a run
+/// that would write over it stops before writing).
+///
+/// Errors: every match of the globs was left out.
+fn skip_own_outputs(
+    plan: &mut Plan,
+    log_file: Option<&std::path::Path>,
+    log: &Log,
+) -> anyhow::Result<()> {
+    let before = plan.spec.paths.len();
+    let globbed = std::mem::take(&mut plan.globbed);
+    plan.spec.paths.retain(|p| {
+        if !globbed.contains(p) {
+            return true;
+        }
+        let kind = if log_file.is_some_and(|l| same_file(l, p)) {
+            Some("the log file")
+        } else {
+            own_output_kind(p)
+        };
+        match kind {
+            Some(k) => {
+                log.warn(&format!(
+                    "{}: skipped, a hazebook output ({k}) matched by a glob in [input] paths; name it in paths to read it",
+                    p.display()
+                ));
+                false
+            }
+            None => true,
+        }
+    });
+    if plan.spec.paths.is_empty() {
+        bail!(
+            "[input] paths: the {before} files matched are all hazebook outputs (skipped, see the warnings); nothing to read"
+        );
+    }
+    Ok(())
+}
+
+/// Log the removal of temporary files that killed runs left in the output folder.
+pub(super) fn report_stale(lock: &FolderLock, log: &Log) {
+    let removed = lock.remove_stale_temporaries();
+    if !removed.is_empty() {
+        log.info(&format!(
+            "removed {} temporary files left by earlier interrupted runs: {}",
+            removed.len(),
+            removed.join(", ")
+        ));
+    }
+}
+
+pub(super) fn staging_error(target: &std::path::Path) -> String {
+    format!(
+        "{}: cannot create a temporary file in its folder",
+        target.display()
+    )
+}
+
+/// A writing error named by the final path rather than its temporary file.
+pub(super) fn named(e: report::ReportError, target: &std::path::Path, what: &str) -> anyhow::Error {
+    match e {
+        report::ReportError::Write { reason, .. } => {
+            anyhow::anyhow!("{}: cannot write the {what}: {reason}", target.display())
+        }
+        other => other.into(),
     }
 }
 

@@ -17,7 +17,7 @@
 //! honoured). For an elevated
 //! aerosol, water vapour is split between the aerosol and the lower layer by pressure
 //! thickness too (a simplification: the real profile is more bottom-heavy; all of it stays
-//! below the aerosol top, as the brief asks). Gas optical depths are the band-effective
+//! below the aerosol top, README "Methods"). Gas optical depths are the band-effective
 //! depths of [`super::gases`] for the path of the sun of each evaluation (Bird & Riordan
 //! 1986: air mass m of Kasten & Young 1989 for water vapour and mixed gases, the ozone air
 //! mass M_o for ozone), referred to the plane-parallel slant factor 1/μ0 of the solver, so
@@ -63,6 +63,7 @@
 
 use super::aerosol::{aerosol_optics, aod_at_wavelength};
 use super::column::{ColumnBatch, add_slices};
+use super::discrete_ordinates::{LayerModes, Quadrature, ScatteringLayer, solve_modes_surface};
 use super::diurnal::day_geometry;
 use super::diurnal::spencer_distance_factor;
 use super::gases::{GasDepths, GasPaths, ozone_airmass_bird_riordan1986};
@@ -74,7 +75,10 @@ use super::solar::{relative_airmass_kasten_young1989, solar_zenith_deg};
 use super::spectrum::{astm_g173_bands, scaled_band_irradiance};
 use super::surface::surface_albedo;
 use super::two_stream::{LayerOptics, ResponseBatch, beam_transmission_batch, solve_batch};
-use super::{BandSet, Effect, Flags, Fluxes, Observation, ObservationResult, Settings, Surface};
+use super::{
+    BandSet, Effect, Flags, Fluxes, Method, Observation, ObservationResult, Settings, SolverError,
+    Surface,
+};
 use chrono::Datelike;
 use rayon::prelude::*;
 
@@ -154,6 +158,11 @@ struct Split {
     /// Shares of the water vapour column in the aerosol and lower layers.
     water_aerosol: f64,
     water_lower: f64,
+    /// Shares of the Rayleigh optical depth in the upper, aerosol and lower layers (the
+    /// pressure shares, or 1, 0, 0 with [`Settings::rayleigh_above_tau`]).
+    rayleigh_upper: f64,
+    rayleigh_aerosol: f64,
+    rayleigh_lower: f64,
     /// Whether a lower layer exists.
     elevated: bool,
     /// Pressure thickness of the aerosol layer [Pa].
@@ -301,6 +310,9 @@ fn split(obs: &Observation, pressure_hpa: f64) -> Split {
         lower: 1.0 - at_base,
         water_aerosol,
         water_lower,
+        rayleigh_upper: at_top,
+        rayleigh_aerosol: at_base - at_top,
+        rayleigh_lower: 1.0 - at_base,
         elevated,
         delta_p_pa: 100.0 * pressure_hpa * (at_base - at_top),
     }
@@ -376,9 +388,20 @@ fn prepare(
             );
         }
     }
+    let mut split = split(obs, pressure_hpa);
+    if let Some(tau) = settings.rayleigh_above_tau {
+        for b in &mut bands {
+            b.tau_rayleigh = tau.max(0.0);
+        }
+        (
+            split.rayleigh_upper,
+            split.rayleigh_aerosol,
+            split.rayleigh_lower,
+        ) = (1.0, 0.0, 0.0);
+    }
     Prepared {
         bands,
-        split: split(obs, pressure_hpa),
+        split,
         surface: obs.surface,
         albedo_diffuse: diffuse_albedo(&obs.surface),
         pressure_hpa,
@@ -436,6 +459,9 @@ fn evaluate(
     suns: &[(f64, f64)],
     w: &mut Scratch,
 ) -> (Fluxes, Fluxes) {
+    if settings.method == Method::DiscreteOrdinates {
+        return evaluate_discrete_ordinates(prep, settings, suns, w);
+    }
     #[cfg(target_arch = "x86_64")]
     {
         if std::arch::is_x86_feature_detected!("avx512f") {
@@ -492,50 +518,7 @@ fn evaluate_any(
         if mu0.is_nan() || mu0 <= 0.0 {
             continue;
         }
-        let zenith_deg = mu0.min(1.0).acos().to_degrees();
-        // Gas paths of Bird & Riordan (1986): air mass m (Kasten & Young) for water vapour and
-        // mixed gases, M_o for ozone (passed as an equivalent ozone column at air mass m).
-        // The band depths y(u)/m are rescaled by m μ0, so that the solver's beam term
-        // e^(−τ/μ0) is the band-mean transmittance e^(−y(u)) along the real path.
-        let airmass = relative_airmass_kasten_young1989(zenith_deg);
-        let ozone_equivalent_du =
-            prep.ozone_du * ozone_airmass_bird_riordan1986(zenith_deg) / airmass;
-        let slant_scale = airmass * mu0;
-        let albedo_direct = surface_albedo(&prep.surface, mu0);
-        // The paths are the same in every band: located on the gas tables once.
-        let paths = GasPaths::new(
-            ozone_equivalent_du,
-            prep.water_cm,
-            prep.pressure_hpa,
-            airmass,
-        );
-        // Vertical gas depths of every band before the slant rescaling: in table order (the
-        // G173 set) all bands in one pass, otherwise band by band (none for the idealised
-        // band or with gases off).
-        let all_bands = settings.gases && {
-            let [o, wv, m] = &mut w.gas;
-            paths.depths_all(o, wv, m);
-            o.len() == n
-                && prep
-                    .bands
-                    .iter()
-                    .enumerate()
-                    .all(|(i, b)| b.gas_band == Some(i))
-        };
-        if !all_bands {
-            for g in &mut w.gas {
-                g.clear();
-                g.resize(n, 0.0);
-            }
-            for (i, band) in prep.bands.iter().enumerate() {
-                if let Some(b) = band.gas_band
-                    && settings.gases
-                {
-                    let d = paths.depths(b);
-                    (w.gas[0][i], w.gas[1][i], w.gas[2][i]) = (d.ozone, d.water, d.mixed);
-                }
-            }
-        }
+        let (slant_scale, albedo_direct) = sun_gas_depths(prep, settings, mu0, &mut w.gas);
         // The layers without aerosol (upper, aerosol layer without it, lower) first, then the
         // aerosol layers with it, so that the solver meets long runs of layers of one kind.
         // Every entry is written below (the lower layers only exist for an elevated
@@ -556,14 +539,14 @@ fn evaluate_any(
                     mixed: gm[i] * slant_scale,
                 };
                 let tr = band.tau_rayleigh;
-                upper[i] = mix_clear(tr * s.upper, gas.ozone + gas.mixed * s.upper);
+                upper[i] = mix_clear(tr * s.rayleigh_upper, gas.ozone + gas.mixed * s.upper);
                 let gas_aerosol_layer = gas.water * s.water_aerosol + gas.mixed * s.aerosol;
-                with[i] = mix(tr * s.aerosol, gas_aerosol_layer, band.aerosol);
+                with[i] = mix(tr * s.rayleigh_aerosol, gas_aerosol_layer, band.aerosol);
                 tau_aerosol[i] = with[i].tau;
-                without[i] = mix_clear(tr * s.aerosol, gas_aerosol_layer);
+                without[i] = mix_clear(tr * s.rayleigh_aerosol, gas_aerosol_layer);
                 if let Some(l) = lower.get_mut(i) {
                     let gas_lower = gas.water * s.water_lower + gas.mixed * s.lower;
-                    *l = mix_clear(tr * s.lower, gas_lower);
+                    *l = mix_clear(tr * s.rayleigh_lower, gas_lower);
                 }
             }
         }
@@ -618,6 +601,167 @@ fn evaluate_any(
             let incident = band.irradiance * mu0 * weight;
             clean.add(incident, c_up[i], c_dir[i], c_dif[i], c_sfc[i]);
             aerosol.add(incident, a_up[i], a_dir[i], a_dif[i], a_sfc[i]);
+        }
+    }
+    (clean.fluxes(), aerosol.fluxes())
+}
+
+/// Gas depths of every band at one sun position into `gas` (ozone, water vapour, mixed
+/// gases; vertical, before the slant rescaling), and the slant factor m μ0 and the surface's
+/// beam albedo at that sun.
+///
+/// Gas paths of Bird & Riordan (1986): air mass m (Kasten & Young) for water vapour and
+/// mixed gases, M_o for ozone (passed as an equivalent ozone column at air mass m). The band
+/// depths y(u)/m are rescaled by m μ0, so that the solver's beam term e^(−τ/μ0) is the
+/// band-mean transmittance e^(−y(u)) along the real path.
+#[inline]
+fn sun_gas_depths(
+    prep: &Prepared,
+    settings: &Settings,
+    mu0: f64,
+    gas: &mut [Vec<f64>; 3],
+) -> (f64, f64) {
+    let n = prep.bands.len();
+    let zenith_deg = mu0.min(1.0).acos().to_degrees();
+    let airmass = relative_airmass_kasten_young1989(zenith_deg);
+    let ozone_equivalent_du = prep.ozone_du * ozone_airmass_bird_riordan1986(zenith_deg) / airmass;
+    let slant_scale = airmass * mu0;
+    let albedo_direct = surface_albedo(&prep.surface, mu0);
+    // The paths are the same in every band: located on the gas tables once.
+    let paths = GasPaths::new(
+        ozone_equivalent_du,
+        prep.water_cm,
+        prep.pressure_hpa,
+        airmass,
+    );
+    // Vertical gas depths of every band before the slant rescaling: in table order (the
+    // G173 set) all bands in one pass, otherwise band by band (none for the idealised
+    // band or with gases off).
+    let all_bands = settings.gases && {
+        let [o, wv, m] = &mut *gas;
+        paths.depths_all(o, wv, m);
+        o.len() == n
+            && prep
+                .bands
+                .iter()
+                .enumerate()
+                .all(|(i, b)| b.gas_band == Some(i))
+    };
+    if !all_bands {
+        for g in gas.iter_mut() {
+            g.clear();
+            g.resize(n, 0.0);
+        }
+        for (i, band) in prep.bands.iter().enumerate() {
+            if let Some(b) = band.gas_band
+                && settings.gases
+            {
+                let d = paths.depths(b);
+                (gas[0][i], gas[1][i], gas[2][i]) = (d.ozone, d.water, d.mixed);
+            }
+        }
+    }
+    (slant_scale, albedo_direct)
+}
+
+/// A layer of Rayleigh scattering, gas absorption and aerosol for the discrete-ordinate
+/// solver: the optics of [`mix`], with the share of the scattering due to molecules kept
+/// apart so that each keeps its own phase function.
+fn mix_scattering(tau_rayleigh: f64, tau_gas: f64, aerosol: LayerOptics) -> ScatteringLayer {
+    let m = mix(tau_rayleigh, tau_gas, aerosol);
+    let aerosol_scattering = aerosol.ssa * aerosol.tau;
+    let scattering = tau_rayleigh + aerosol_scattering;
+    ScatteringLayer {
+        tau: m.tau,
+        ssa: m.ssa,
+        rayleigh_share: if scattering > 0.0 {
+            tau_rayleigh / scattering
+        } else {
+            1.0
+        },
+        aerosol_g: if aerosol.tau > 0.0 || aerosol.g.is_nan() {
+            aerosol.g
+        } else {
+            0.0
+        },
+    }
+}
+
+/// [`evaluate`] with the discrete-ordinate solver ([`super::discrete_ordinates`]) of
+/// [`Settings::streams`] streams and delta-M: the same layers, gas paths and surface (the
+/// beam reflected with the beam albedo, diffuse light with the diffuse albedo, both
+/// isotropically), band by band.
+fn evaluate_discrete_ordinates(
+    prep: &Prepared,
+    settings: &Settings,
+    suns: &[(f64, f64)],
+    w: &mut Scratch,
+) -> (Fluxes, Fluxes) {
+    let mut clean = Sums::default();
+    let mut aerosol = Sums::default();
+    let Some(quad) = Quadrature::new(settings.streams) else {
+        let nan = Fluxes {
+            toa_down: f64::NAN,
+            toa_up: f64::NAN,
+            toa_net: f64::NAN,
+            sfc_down_direct: f64::NAN,
+            sfc_down_diffuse: f64::NAN,
+            sfc_up: f64::NAN,
+            sfc_net: f64::NAN,
+        };
+        return (nan, nan);
+    };
+    let s = prep.split;
+    for &(mu0, weight) in suns {
+        if mu0.is_nan() || mu0 <= 0.0 {
+            continue;
+        }
+        let (slant_scale, albedo_direct) = sun_gas_depths(prep, settings, mu0, &mut w.gas);
+        for (i, band) in prep.bands.iter().enumerate() {
+            let gas = GasDepths {
+                ozone: w.gas[0][i] * slant_scale,
+                water: w.gas[1][i] * slant_scale,
+                mixed: w.gas[2][i] * slant_scale,
+            };
+            let tr = band.tau_rayleigh;
+            let none = LayerOptics::default();
+            let gas_aerosol_layer = gas.water * s.water_aerosol + gas.mixed * s.aerosol;
+            let upper =
+                mix_scattering(tr * s.rayleigh_upper, gas.ozone + gas.mixed * s.upper, none);
+            let with = mix_scattering(tr * s.rayleigh_aerosol, gas_aerosol_layer, band.aerosol);
+            let without = mix_scattering(tr * s.rayleigh_aerosol, gas_aerosol_layer, none);
+            let modes = |l: &ScatteringLayer| LayerModes::new(l, &quad, true);
+            let (upper, with, without) = (modes(&upper), modes(&with), modes(&without));
+            let lower = s.elevated.then(|| {
+                let gas_lower = gas.water * s.water_lower + gas.mixed * s.lower;
+                modes(&mix_scattering(tr * s.rayleigh_lower, gas_lower, none))
+            });
+            let (ad, af) = (albedo_direct, prep.albedo_diffuse);
+            let (c, a) = match &lower {
+                Some(lower) => (
+                    solve_modes_surface(&[&upper, &without, lower], &quad, mu0, ad, af),
+                    solve_modes_surface(&[&upper, &with, lower], &quad, mu0, ad, af),
+                ),
+                None => (
+                    solve_modes_surface(&[&upper, &without], &quad, mu0, ad, af),
+                    solve_modes_surface(&[&upper, &with], &quad, mu0, ad, af),
+                ),
+            };
+            let incident = band.irradiance * mu0 * weight;
+            clean.add(
+                incident,
+                c.toa_up,
+                c.sfc_down_direct,
+                c.sfc_down_diffuse,
+                c.sfc_up,
+            );
+            aerosol.add(
+                incident,
+                a.toa_up,
+                a.sfc_down_direct,
+                a.sfc_down_diffuse,
+                a.sfc_up,
+            );
         }
     }
     (clean.fluxes(), aerosol.fluxes())
@@ -704,9 +848,12 @@ fn compute_with(
             (z.to_radians().cos(), z)
         }
     };
-    // NaN zenith (bad coordinates) is treated as a sun that cannot be placed: no flux.
-    let sun_up = zenith_deg < 90.0 && mu0 > 0.0;
-    flags.sun_below_horizon = !sun_up;
+    // A NaN zenith (a time or place the solar position cannot be computed for) is no
+    // night: the sun cannot be placed, the instantaneous effect is NaN (not zero) and the
+    // row is not flagged as below the horizon; the caller rejects such a row.
+    let placed = zenith_deg.is_finite() && mu0.is_finite();
+    let sun_up = placed && zenith_deg < 90.0 && mu0 > 0.0;
+    flags.sun_below_horizon = placed && !sun_up;
     flags.low_sun = sun_up && zenith_deg > LOW_SUN_ZENITH_DEG;
     let instantaneous = if sun_up {
         // (1 AU/r)² of the UTC day from Spencer's series (accuracy ~1e-4; a second SPA
@@ -718,8 +865,19 @@ fn compute_with(
         };
         let (c, a) = evaluate(&prep, settings, &[(mu0, distance)], scratch);
         effect(c, a, aod_550, dp)
-    } else {
+    } else if placed {
         effect(Fluxes::default(), Fluxes::default(), aod_550, dp)
+    } else {
+        let unplaced = Fluxes {
+            toa_down: f64::NAN,
+            toa_up: f64::NAN,
+            toa_net: f64::NAN,
+            sfc_down_direct: f64::NAN,
+            sfc_down_diffuse: f64::NAN,
+            sfc_up: f64::NAN,
+            sfc_net: f64::NAN,
+        };
+        effect(unplaced, unplaced, aod_550, dp)
     };
 
     // 24-hour mean (the day's geometry also gives the daylight length and polar flags when
@@ -753,6 +911,20 @@ fn compute_with(
         Effect::default()
     };
 
+    let solver_error = if settings.error_estimate {
+        estimate_error(
+            &prep,
+            settings,
+            &instantaneous,
+            &daily,
+            (mu0, sun_up),
+            obs,
+            scratch,
+        )
+    } else {
+        SolverError::default()
+    };
+
     let pressure_hpa = prep.pressure_hpa;
     scratch.bands = prep.bands;
     ObservationResult {
@@ -764,6 +936,92 @@ fn compute_with(
         daylight_hours,
         flags,
         uncertainty: None,
+        solver_error,
+    }
+}
+
+/// The two-stream's error of one observation: the same column computed with the other
+/// solver (discrete ordinates with [`Settings::streams`] streams when the main results are
+/// two-stream, the two-stream closure of the settings otherwise), two-stream minus discrete
+/// ordinates for each DRE. The 24-hour values are NaN when the means are off.
+fn estimate_error(
+    prep: &Prepared,
+    settings: &Settings,
+    instantaneous: &Effect,
+    daily: &Effect,
+    (mu0, sun_up): (f64, bool),
+    obs: &Observation,
+    scratch: &mut Scratch,
+) -> SolverError {
+    let other = Settings {
+        method: match settings.method {
+            Method::TwoStream => Method::DiscreteOrdinates,
+            Method::DiscreteOrdinates => Method::TwoStream,
+        },
+        error_estimate: false,
+        ..settings.clone()
+    };
+    let sign = if settings.method == Method::TwoStream {
+        1.0
+    } else {
+        -1.0
+    };
+    let (inst, day) = {
+        let inst = if sun_up {
+            let distance = if settings.earth_sun_distance {
+                spencer_distance_factor(obs.time_utc.ordinal())
+            } else {
+                1.0
+            };
+            let (c, a) = evaluate(prep, &other, &[(mu0, distance)], scratch);
+            Some((c, a))
+        } else {
+            None
+        };
+        let day = settings.daily_mean.then(|| {
+            let geometry = day_geometry(
+                local_solar_date(obs),
+                obs.latitude_deg,
+                settings.diurnal_nodes,
+            );
+            let distance = if settings.earth_sun_distance {
+                geometry.distance_factor
+            } else {
+                1.0
+            };
+            let suns: Vec<(f64, f64)> = geometry
+                .cos_zenith
+                .iter()
+                .zip(&geometry.weights)
+                .map(|(&mu, &w)| (mu, w * distance))
+                .collect();
+            evaluate(prep, &other, &suns, scratch)
+        });
+        (inst, day)
+    };
+    let diff = |main: &Effect, other: Option<(Fluxes, Fluxes)>| -> [f64; 3] {
+        match other {
+            Some((c, a)) => {
+                let toa = (a.toa_net - c.toa_net) - main.dre_toa;
+                let sfc = (a.sfc_net - c.sfc_net) - main.dre_sfc;
+                [-sign * toa, -sign * sfc, -sign * (toa - sfc)]
+            }
+            None => [0.0; 3],
+        }
+    };
+    let i = diff(instantaneous, inst);
+    let d = if settings.daily_mean {
+        diff(daily, day)
+    } else {
+        [f64::NAN; 3]
+    };
+    SolverError {
+        dre_toa: i[0],
+        dre_sfc: i[1],
+        dre_atm: i[2],
+        dre_toa_24h: d[0],
+        dre_sfc_24h: d[1],
+        dre_atm_24h: d[2],
     }
 }
 

@@ -10,6 +10,7 @@
 
 pub mod aerosol;
 pub mod column;
+pub mod discrete_ordinates;
 pub mod diurnal;
 pub mod forcing;
 pub mod gases;

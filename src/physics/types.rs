@@ -108,6 +108,38 @@ pub enum Closure {
     Pifm,
 }
 
+/// Flux solver of the main results.
+#[derive(
+    Debug, Clone, Copy, PartialEq, Eq, Hash, Default, serde::Serialize, serde::Deserialize,
+)]
+#[serde(rename_all = "kebab-case")]
+pub enum Method {
+    /// The two-stream [`Closure`] of the settings with the adding method.
+    #[default]
+    TwoStream,
+    /// Discrete ordinates with delta-M (Stamnes et al. 1988) and
+    /// [`Settings::streams`] streams ([`super::discrete_ordinates`]).
+    DiscreteOrdinates,
+}
+
+impl Method {
+    /// The name as job files and the command line spell it.
+    pub fn name(self) -> &'static str {
+        match self {
+            Method::TwoStream => "two-stream",
+            Method::DiscreteOrdinates => "discrete-ordinates",
+        }
+    }
+}
+
+/// Default number of streams of the discrete-ordinate solver (the chosen accurate option;
+/// see the README section "Solvers").
+pub const DEFAULT_STREAMS: usize = 4;
+
+fn default_streams() -> usize {
+    DEFAULT_STREAMS
+}
+
 /// Spectral resolution of the calculation.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Default, serde::Serialize, serde::Deserialize)]
 #[serde(rename_all = "kebab-case")]
@@ -140,6 +172,22 @@ pub struct Settings {
     pub earth_sun_distance: bool,
     /// Compute the 24-hour means.
     pub daily_mean: bool,
+    /// Flux solver of the main results.
+    #[serde(default)]
+    pub method: Method,
+    /// Streams of the discrete-ordinate solver (even, 2–64); default [`DEFAULT_STREAMS`].
+    #[serde(default = "default_streams")]
+    pub streams: usize,
+    /// Also compute every row with the other solver (the two-stream if [`Self::method`]
+    /// is the discrete-ordinate one, else discrete ordinates with [`Self::streams`]) and
+    /// report the two-stream's error, [`ObservationResult::solver_error`].
+    #[serde(default)]
+    pub error_estimate: bool,
+    /// Idealised: all molecular scattering in one layer of this optical depth above the
+    /// aerosol layer (the same in every band), instead of Bodhaine's depth shared by
+    /// pressure; the aerosol and lower layers then hold no molecules.
+    #[serde(default, with = "serde_float::opt_float")]
+    pub rayleigh_above_tau: Option<f64>,
 }
 
 impl Default for Settings {
@@ -154,6 +202,10 @@ impl Default for Settings {
             fixed_cos_zenith: None,
             earth_sun_distance: true,
             daily_mean: true,
+            method: Method::TwoStream,
+            streams: DEFAULT_STREAMS,
+            error_estimate: false,
+            rayleigh_above_tau: None,
         }
     }
 }
@@ -286,6 +338,41 @@ pub struct ObservationResult {
     /// ([`super::uncertainty::propagate`]).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub uncertainty: Option<super::uncertainty::RowUncertainty>,
+    /// Two-stream minus accurate DRE, when [`Settings::error_estimate`] is set (NaN
+    /// otherwise).
+    #[serde(default)]
+    pub solver_error: SolverError,
+}
+
+/// The two-stream's error in the DRE of one observation: two-stream minus discrete
+/// ordinates [W m⁻²], instantaneous and 24-hour mean; NaN where not computed.
+#[derive(Debug, Clone, Copy, PartialEq, serde::Serialize, serde::Deserialize)]
+pub struct SolverError {
+    #[serde(with = "serde_float::float")]
+    pub dre_toa: f64,
+    #[serde(with = "serde_float::float")]
+    pub dre_sfc: f64,
+    #[serde(with = "serde_float::float")]
+    pub dre_atm: f64,
+    #[serde(with = "serde_float::float")]
+    pub dre_toa_24h: f64,
+    #[serde(with = "serde_float::float")]
+    pub dre_sfc_24h: f64,
+    #[serde(with = "serde_float::float")]
+    pub dre_atm_24h: f64,
+}
+
+impl Default for SolverError {
+    fn default() -> Self {
+        Self {
+            dre_toa: f64::NAN,
+            dre_sfc: f64::NAN,
+            dre_atm: f64::NAN,
+            dre_toa_24h: f64::NAN,
+            dre_sfc_24h: f64::NAN,
+            dre_atm_24h: f64::NAN,
+        }
+    }
 }
 
 /// Serde encodings of floating-point fields for files that must read back bit for bit (the

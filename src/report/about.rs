@@ -7,9 +7,20 @@ use rust_xlsxwriter::{Workbook, XlsxError};
 use super::ReportInput;
 use super::template::{SheetSpec, Template};
 use super::xlsx::{SIGNIFICANT_DIGITS, Styles, clip};
-use crate::ingest::ValueSource;
+use crate::ingest::{MappedColumn, ValueSource};
 use crate::physics::references::METHODS;
-use crate::physics::{BandSet, Closure, Settings};
+use crate::physics::{BandSet, Closure, Method, Settings};
+
+/// The solver of the main Results columns as written in the report.
+pub fn solver_name(settings: &Settings) -> String {
+    match settings.method {
+        Method::TwoStream => format!("the {} two-stream closure", closure_name(settings.closure)),
+        Method::DiscreteOrdinates => format!(
+            "the {}-stream discrete-ordinate solver with delta-M (Stamnes et al. 1988; Wiscombe 1977)",
+            settings.streams
+        ),
+    }
+}
 
 /// Name of a closure as written in the report.
 pub fn closure_name(c: Closure) -> &'static str {
@@ -43,7 +54,7 @@ fn on_off(b: bool) -> &'static str {
     if b { "on" } else { "off" }
 }
 
-/// The cautions stated on every report (BRIEF §8).
+/// The cautions stated on every report (README, "Cautions").
 pub const CAUTIONS: &[&str] = &[
     "Clear sky only: clouds are not represented; rows under cloud give the effect the aerosol would have had in a cloud-free sky.",
     "Plane-parallel, horizontally homogeneous atmosphere; two-stream radiative transfer with broadband shortwave bands.",
@@ -72,6 +83,50 @@ pub fn statistics_notes() -> Vec<String> {
         "Normalised efficiency = ΔF / (AOD(550) × incident TOA flux), 24-hour means: the fraction of the incident flux per unit AOD, comparable between seasons and latitudes; the normalised slope is the fitted slope divided by the group's mean incident TOA flux.".into(),
         "Groups by year, month, season and date use UTC; seasons are DJF, MAM, JJA, SON.".into(),
     ]
+}
+
+/// Quantity of a read column as the About sheet shows it: `aod (500 nm)`,
+/// `angstrom (440–870 nm pair)`.
+fn quantity_label(m: &MappedColumn) -> String {
+    match (m.wavelength_nm, m.wavelength_pair_nm) {
+        (_, Some([a, b])) => format!("{} ({a}–{b} nm pair)", m.quantity),
+        (Some(w), None) => format!("{} ({w} nm)", m.quantity),
+        (None, None) => m.quantity.clone(),
+    }
+}
+
+fn write_mapped(
+    ws: &mut rust_xlsxwriter::Worksheet,
+    r: u32,
+    m: &MappedColumn,
+) -> Result<(), XlsxError> {
+    let q = quantity_label(m);
+    for (c, s) in [&q, &m.header, &m.file, &m.sheet, &m.letter, &m.unit, &m.how]
+        .into_iter()
+        .enumerate()
+    {
+        if !s.is_empty() {
+            ws.write_string(r, c as u16, clip(s).as_ref())?;
+        }
+    }
+    Ok(())
+}
+
+/// What the Ångström exponent's wavelength pair means for the AOD of the bands.
+fn angstrom_pair_note(m: &MappedColumn, settings: &Settings) -> String {
+    let [a, b] = m.wavelength_pair_nm.unwrap_or([f64::NAN, f64::NAN]);
+    let head = format!(
+        "column {} \"{}\" ({}): Ångström exponent measured over {a}–{b} nm.",
+        m.letter, m.header, m.file
+    );
+    match settings.band_set {
+        BandSet::AstmG173 => format!(
+            "{head} The bands span 280–4000 nm, so for every row the band AOD below {a} nm and above {b} nm is extrapolated in the Ångström law; rows whose AOD wavelength lies outside the pair carry a warning on the Results sheet."
+        ),
+        BandSet::Single => format!(
+            "{head} One band at the AOD wavelength: rows whose AOD wavelength lies outside the pair carry a warning on the Results sheet (extrapolated to 550 nm in the Ångström law)."
+        ),
+    }
 }
 
 struct Cursor {
@@ -140,7 +195,7 @@ pub fn write_about(
 
     // The job in one paragraph.
     section(ws, &mut cur, "The job")?;
-    let mut sites: Vec<&str> = ing.sites.iter().map(String::as_str).collect();
+    let mut sites: Vec<&str> = ing.sites.iter().map(|s| ing.site_label(s)).collect();
     sites.sort_unstable();
     sites.dedup();
     let times = input.ingested.observations.iter().map(|o| o.time_utc);
@@ -164,7 +219,7 @@ pub fn write_about(
         "Job \"{}\"{period}: the clear-sky shortwave aerosol direct radiative effect (DRE) at the top of the atmosphere (TOA) and at the surface (SFC), \
          the atmospheric absorption ΔF_ATM = ΔF_TOA − ΔF_SFC, forcing efficiencies and the heating rate of the aerosol layer, \
          at the measurement time and as 24-hour means, for {} computed observation(s) at {} site(s) ({}){span}, read from {}. \
-         Computed by hazebook {} with the {} two-stream closure over the {}; written with the \"{}\" template. \
+         Computed by hazebook {} with {} over the {}; written with the \"{}\" template. \
          Net flux is downward minus upward; negative DRE cools. Sheets: {}.",
         about.job_name,
         input.results.len(),
@@ -176,7 +231,7 @@ pub fn write_about(
             files.join(", ")
         },
         about.version,
-        closure_name(settings.closure),
+        solver_name(settings),
         band_set_name(settings.band_set),
         about.template_name,
         sheet_names.join(", "),
@@ -189,12 +244,18 @@ pub fn write_about(
     section(ws, &mut cur, "Rows")?;
     let c = ing.counts;
     let holds = c.read == c.computed + c.rejected + c.outside_period;
-    for (k, v) in [
+    let mut count_rows = vec![
         ("Rows read", c.read),
         ("Computed (Results)", c.computed),
         ("Rejected (Rejected sheet)", c.rejected),
         ("Outside the period", c.outside_period),
-    ] {
+    ];
+    if ing.other_sites > 0 {
+        // Rows of the other sites of a per-site report or a site filter: part of the
+        // "outside" count above, so that each report reconciles its own rows.
+        count_rows.push(("of which rows of other sites", ing.other_sites));
+    }
+    for (k, v) in count_rows {
         ws.write_string_with_format(cur.r, 0, k, &styles.label)?;
         ws.write_number_with_format(cur.r, 1, v as f64, styles.class(super::frame::Class::Count))?;
         cur.r += 1;
@@ -228,6 +289,22 @@ pub fn write_about(
         .unwrap_or_else(|| "off (from time and place)".into());
     let rows: Vec<(&str, String)> = vec![
         ("Two-stream closure", closure_name(settings.closure).into()),
+        ("Flux solver (main columns)", solver_name(settings)),
+        (
+            "Two-stream error columns",
+            if settings.error_estimate {
+                format!(
+                    "on: each row also computed with {}; the *_error columns are two-stream minus discrete ordinates",
+                    match settings.method {
+                        Method::TwoStream =>
+                            format!("the {}-stream discrete-ordinate solver", settings.streams),
+                        Method::DiscreteOrdinates => closure_name(settings.closure).to_string(),
+                    }
+                )
+            } else {
+                "off".into()
+            },
+        ),
         ("Band set", band_set_name(settings.band_set).into()),
         (
             "Solar constant",
@@ -267,7 +344,11 @@ pub fn write_about(
     }
 
     // Assumptions.
-    section(ws, &mut cur, "Assumptions and defaults that applied")?;
+    section(
+        ws,
+        &mut cur,
+        "Values not given in the rows, and where they came from",
+    )?;
     if ing.assumptions.is_empty() {
         pair(ws, &mut cur, "None", "every value came from the inputs")?;
     } else {
@@ -286,13 +367,23 @@ pub fn write_about(
         }
     }
 
-    // Column mapping.
+    // Site values read from key/value metadata.
+    if !ing.metadata.is_empty() {
+        section(ws, &mut cur, "Site values read from metadata")?;
+        table_head(ws, &mut cur, &["Site", "Field", "Value", "Read from"])?;
+        for v in &ing.metadata {
+            for (c, text) in [&v.site, &v.quantity, &v.value, &v.origin]
+                .into_iter()
+                .enumerate()
+            {
+                ws.write_string(cur.r, c as u16, clip(text).as_ref())?;
+            }
+            cur.r += 1;
+        }
+    }
+
+    // Column accounting: every header column, read or not.
     section(ws, &mut cur, "How the input columns were read")?;
-    let mapping = if input.mapping.is_empty() {
-        &ing.mapping
-    } else {
-        input.mapping
-    };
     table_head(
         ws,
         &mut cur,
@@ -300,12 +391,34 @@ pub fn write_about(
             "Quantity", "Header", "File", "Sheet", "Column", "Unit", "How",
         ],
     )?;
-    for m in mapping {
-        let q = match m.wavelength_nm {
-            Some(w) => format!("{} ({w} nm)", m.quantity),
-            None => m.quantity.clone(),
+    let merged_mapping = !input.mapping.is_empty() && input.mapping != ing.mapping.as_slice();
+    for m in input.mapping.iter().filter(|_| merged_mapping) {
+        write_mapped(ws, cur.r, m)?;
+        cur.r += 1;
+    }
+    for a in ing.column_accounts() {
+        if merged_mapping && a.status == "read" && a.role == "data" {
+            continue;
+        }
+        let m = ing
+            .mapping
+            .iter()
+            .chain(&ing.site_columns)
+            .find(|m| m.file == a.file && m.sheet == a.sheet && m.letter == a.letter);
+        let (q, unit, how) = match (a.status, m) {
+            ("read", Some(m)) => (quantity_label(m), m.unit.clone(), m.how.clone()),
+            _ => (
+                "(not read)".to_string(),
+                String::new(),
+                format!("ignored: {}", a.detail),
+            ),
         };
-        for (c, s) in [&q, &m.header, &m.file, &m.sheet, &m.letter, &m.unit, &m.how]
+        let header = if a.header.is_empty() {
+            "(no header)".to_string()
+        } else {
+            a.header.clone()
+        };
+        for (c, s) in [&q, &header, &a.file, &a.sheet, &a.letter, &unit, &how]
             .into_iter()
             .enumerate()
         {
@@ -314,6 +427,34 @@ pub fn write_about(
             }
         }
         cur.r += 1;
+    }
+    for m in ing
+        .mapping
+        .iter()
+        .filter(|m| m.wavelength_pair_nm.is_some())
+    {
+        pair(
+            ws,
+            &mut cur,
+            "Ångström wavelength pair",
+            &angstrom_pair_note(m, settings),
+        )?;
+    }
+
+    // Sites.
+    if !ing.site_rules.is_empty() || !ing.site_labels.is_empty() {
+        section(ws, &mut cur, "Sites")?;
+        for r in &ing.site_rules {
+            pair(ws, &mut cur, "How sites were found", r)?;
+        }
+        for (key, label) in &ing.site_labels {
+            pair(
+                ws,
+                &mut cur,
+                key,
+                &format!("shown as \"{label}\" (the key stays {key})"),
+            )?;
+        }
     }
 
     // Statistics.
@@ -345,8 +486,11 @@ pub fn write_about(
     pair(
         ws,
         &mut cur,
-        "Created (UTC)",
-        &about.created_utc.format("%Y-%m-%dT%H:%M:%SZ").to_string(),
+        "Document date (UTC)",
+        &format!(
+            "{} (the latest observation's time, or SOURCE_DATE_EPOCH when set; not the time of the run, so that reruns give identical files)",
+            about.created_utc.format("%Y-%m-%dT%H:%M:%SZ")
+        ),
     )?;
     pair(
         ws,

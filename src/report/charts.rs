@@ -14,10 +14,14 @@ use super::template::{ChartKind, SheetSpec, Template};
 use super::xlsx::{self, Styles, Widths, put_number, stat_value};
 
 /// One colour per site, in the order of the sorted site names, the same on every chart
-/// (our own palette; repeats after ten sites).
-pub const SITE_PALETTE: [u32; 10] = [
-    0x1F5A96, 0xD9822B, 0x3A8F5C, 0x8E4A9E, 0xC0392B, 0x17A2A2, 0x7F6A00, 0xD65C9A, 0x5D6D7E,
-    0x2E2E8A,
+/// (hazebook's own palette; repeats after eight sites).
+///
+/// Chosen to stay apart for colour-blind readers: every pair differs by at least 20 ΔE*ab
+/// (CIE 1976) in normal vision and in simulated protanopia, deuteranopia and tritanopia (the
+/// test `palette_is_distinguishable_in_colour_blind_vision` checks it), with lightness
+/// L* 28–72 so that every colour shows on white.
+pub const SITE_PALETTE: [u32; 8] = [
+    0x882266, 0xDD9933, 0x33AACC, 0x3A3AA0, 0x99BB77, 0x5A4A2E, 0x7777DD, 0xAA8888,
 ];
 
 /// Most points plotted per site on a scatter chart (every k-th row beyond that; the fit uses
@@ -47,7 +51,7 @@ pub fn write_charts(
         .clone()
         .unwrap_or_else(|| vec![ChartKind::MonthlyDre, ChartKind::DreVsAod]);
     let (toa, sfc, when) = if daily_mean {
-        ("dre_toa_24h", "dre_sfc_24h", "24-h mean")
+        ("dre_toa_24h", "dre_sfc_24h", "24-h")
     } else {
         ("dre_toa", "dre_sfc", "instantaneous")
     };
@@ -321,10 +325,16 @@ pub fn write_charts(
 
 /// A series name as literal text (a leading `=` would make it a cell reference).
 fn series_label(s: &str) -> String {
+    // `Gull!A1` would be read as a cell of a sheet "Gull" (an unknown sheet fails the whole
+    // write): a word joiner (U+2060, invisible) after the `!` keeps it a plain name.
+    let s = match s.find('!') {
+        Some(i) => format!("{}\u{2060}{}", &s[..=i], &s[i + 1..]),
+        None => s.to_string(),
+    };
     if s.starts_with('=') {
         format!(" {s}")
     } else {
-        s.to_string()
+        s
     }
 }
 
@@ -349,4 +359,118 @@ fn xlsx_mean(v: &[f64]) -> f64 {
 
 fn stats_mean(v: impl Iterator<Item = f64>) -> f64 {
     super::stats::summarise(v).mean.unwrap_or(f64::NAN)
+}
+
+#[cfg(test)]
+mod palette_tests {
+    use super::SITE_PALETTE;
+
+    /// sRGB component [0–255] to linear light (IEC 61966-2-1).
+    fn linear(c: u32) -> f64 {
+        let c = f64::from(c) / 255.0;
+        if c <= 0.04045 {
+            c / 12.92
+        } else {
+            ((c + 0.055) / 1.055).powf(2.4)
+        }
+    }
+
+    /// CIELAB (D65) of linear sRGB (IEC 61966-2-1 primaries; CIE 1976 L*a*b*).
+    fn lab(rgb: [f64; 3]) -> [f64; 3] {
+        let [r, g, b] = rgb;
+        let x = (0.4124564 * r + 0.3575761 * g + 0.1804375 * b) / 0.95047;
+        let y = 0.2126729 * r + 0.7151522 * g + 0.0721750 * b;
+        let z = (0.0193339 * r + 0.1191920 * g + 0.9503041 * b) / 1.08883;
+        let f = |t: f64| {
+            if t > 216.0 / 24389.0 {
+                t.cbrt()
+            } else {
+                (24389.0 / 27.0 * t + 16.0) / 116.0
+            }
+        };
+        let (fx, fy, fz) = (f(x), f(y), f(z));
+        [116.0 * fy - 16.0, 500.0 * (fx - fy), 200.0 * (fy - fz)]
+    }
+
+    /// Dichromat simulation matrices in linear RGB, severity 1.0: Machado, Oliveira &
+    /// Fernandes (2009), IEEE Trans. Vis. Comput. Graph. 15(6), 1291–1298, table values
+    /// from memory.
+    const SIMULATIONS: [(&str, [[f64; 3]; 3]); 4] = [
+        (
+            "normal",
+            [[1.0, 0.0, 0.0], [0.0, 1.0, 0.0], [0.0, 0.0, 1.0]],
+        ),
+        (
+            "protanopia",
+            [
+                [0.152286, 1.052583, -0.204868],
+                [0.114503, 0.786281, 0.099216],
+                [-0.003882, -0.048116, 1.051998],
+            ],
+        ),
+        (
+            "deuteranopia",
+            [
+                [0.367322, 0.860646, -0.227968],
+                [0.280085, 0.672501, 0.047413],
+                [-0.011820, 0.042940, 0.968881],
+            ],
+        ),
+        (
+            "tritanopia",
+            [
+                [1.255528, -0.076749, -0.178779],
+                [-0.078411, 0.930809, 0.147602],
+                [0.004733, 0.691367, 0.303900],
+            ],
+        ),
+    ];
+
+    fn seen(hex: u32, m: &[[f64; 3]; 3]) -> [f64; 3] {
+        let c = [
+            linear(hex >> 16 & 255),
+            linear(hex >> 8 & 255),
+            linear(hex & 255),
+        ];
+        let mut o = [0.0; 3];
+        for (i, row) in m.iter().enumerate() {
+            o[i] = (row[0] * c[0] + row[1] * c[1] + row[2] * c[2]).clamp(0.0, 1.0);
+        }
+        lab(o)
+    }
+
+    #[test]
+    fn palette_is_distinguishable_in_colour_blind_vision() {
+        for (name, m) in &SIMULATIONS {
+            for (i, &a) in SITE_PALETTE.iter().enumerate() {
+                for &b in &SITE_PALETTE[i + 1..] {
+                    let (la, lb) = (seen(a, m), seen(b, m));
+                    let de = la
+                        .iter()
+                        .zip(&lb)
+                        .map(|(x, y)| (x - y).powi(2))
+                        .sum::<f64>()
+                        .sqrt();
+                    assert!(
+                        de >= 20.0,
+                        "{name}: #{a:06X} and #{b:06X} differ by ΔE {de:.1}"
+                    );
+                }
+            }
+        }
+        for &c in &SITE_PALETTE {
+            let l = seen(c, &SIMULATIONS[0].1)[0];
+            assert!((28.0..=72.0).contains(&l), "#{c:06X}: L* {l:.1}");
+        }
+    }
+
+    #[test]
+    fn simulation_keeps_grey_grey() {
+        // A neutral grey stays (nearly) neutral under each simulation: the rows of each
+        // matrix sum to 1 (a property of the published matrices).
+        for (name, m) in &SIMULATIONS {
+            let [_, a, b] = seen(0x808080, m);
+            assert!(a.abs() < 0.5 && b.abs() < 0.5, "{name}: a* {a}, b* {b}");
+        }
+    }
 }

@@ -71,6 +71,8 @@ enum Source {
     Flux(bool, bool, fn(&Fluxes) -> f64),
     /// A value of the row's propagated uncertainty (`fn(uncertainty, index)`).
     Uncertainty(fn(&RowUncertainty, usize) -> f64, usize),
+    /// A two-stream error ([`crate::physics::SolverError`]).
+    Error(fn(&Row) -> f64),
 }
 
 /// Definition of one Results column.
@@ -115,6 +117,7 @@ impl ColumnDef {
                 Some(u) => Value::Num(f(u, i)),
                 None => Value::Empty,
             },
+            Source::Error(f) => Value::Num(f(row)),
         }
     }
 
@@ -137,6 +140,7 @@ pub const COLUMN_GROUPS: &[&str] = &[
     "daily",
     "fluxes",
     "uncertainty",
+    "solver_error",
     "status",
 ];
 
@@ -161,7 +165,7 @@ fn col(
 }
 
 /// Linear interpolation in ln λ, end values held outside the given wavelengths (the rule of
-/// the aerosol spectral model, BRIEF §2), evaluated at `nm`.
+/// the aerosol spectral model, README "Methods"), evaluated at `nm`.
 pub fn interpolate_ln_wavelength(values: &[SpectralValue], nm: f64) -> f64 {
     match values {
         [] => f64::NAN,
@@ -401,6 +405,65 @@ pub fn drop_empty_uncertainty<'c>(cols: Vec<&'c ColumnDef>, rows: &[Row]) -> Vec
         .collect()
 }
 
+/// The two-stream's error of each DRE (two-stream minus discrete ordinates), computed only
+/// with `[solver] error_estimate = true`.
+fn solver_error_columns() -> Vec<ColumnDef> {
+    type Field = (&'static str, &'static str, bool, fn(&Row) -> f64);
+    let fields: [Field; 6] = [
+        (
+            "dre_toa_error",
+            "ΔF_TOA two-stream error (instantaneous)",
+            false,
+            |r| r.res.solver_error.dre_toa,
+        ),
+        (
+            "dre_sfc_error",
+            "ΔF_SFC two-stream error (instantaneous)",
+            false,
+            |r| r.res.solver_error.dre_sfc,
+        ),
+        (
+            "dre_atm_error",
+            "ΔF_ATM two-stream error (instantaneous)",
+            false,
+            |r| r.res.solver_error.dre_atm,
+        ),
+        (
+            "dre_toa_error_24h",
+            "ΔF_TOA two-stream error (24-h mean)",
+            true,
+            |r| r.res.solver_error.dre_toa_24h,
+        ),
+        (
+            "dre_sfc_error_24h",
+            "ΔF_SFC two-stream error (24-h mean)",
+            true,
+            |r| r.res.solver_error.dre_sfc_24h,
+        ),
+        (
+            "dre_atm_error_24h",
+            "ΔF_ATM two-stream error (24-h mean)",
+            true,
+            |r| r.res.solver_error.dre_atm_24h,
+        ),
+    ];
+    fields
+        .into_iter()
+        .map(|(key, header, daily, f)| ColumnDef {
+            daily,
+            sunlit: !daily,
+            ..col(
+                key,
+                header,
+                "W m⁻²",
+                Class::Dre,
+                "solver_error",
+                Source::Error(f),
+            )
+        })
+        .collect()
+}
+
 fn time_millis(t: &DateTime<Utc>) -> i64 {
     t.timestamp_millis()
 }
@@ -443,7 +506,7 @@ static COLUMNS: LazyLock<Vec<ColumnDef>> = LazyLock::new(|| {
         col(
             "row",
             "Row",
-            "as shown",
+            "",
             Count,
             "identity",
             Source::Get(|r| Value::Num(f64::from(r.origin.row))),
@@ -624,6 +687,7 @@ static COLUMNS: LazyLock<Vec<ColumnDef>> = LazyLock::new(|| {
     v.extend(flux_columns(true));
     let unc = uncertainty_columns(&v);
     v.extend(unc);
+    v.extend(solver_error_columns());
     v.push(col(
         "flags",
         "Flags",
@@ -706,10 +770,12 @@ pub fn select_columns(names: &[String]) -> Option<Vec<&'static ColumnDef>> {
     Some(out)
 }
 
-/// Drop the columns that the settings did not compute (24-hour means when switched off).
+/// Drop the columns that the settings did not compute (24-hour means when switched off, the
+/// two-stream errors without `error_estimate`).
 pub fn available<'c>(cols: Vec<&'c ColumnDef>, settings: &Settings) -> Vec<&'c ColumnDef> {
     cols.into_iter()
         .filter(|c| settings.daily_mean || !c.daily)
+        .filter(|c| settings.error_estimate || c.group != "solver_error")
         .collect()
 }
 

@@ -1,5 +1,6 @@
 //! Report workbooks from templates: Results, grouped statistics, forcing-efficiency
-//! regressions, charts, About and Rejected sheets; Parquet or CSV side output.
+//! regressions, charts, About and Rejected sheets; CSV, Parquet or NetCDF side output
+//! ([`side`]).
 //!
 //! Entry points: [`template::load`] (a built-in name or a TOML file), [`write_report`]
 //! (or [`write_report_with`] for a smaller worksheet row limit) and [`write_side_output`].
@@ -43,11 +44,16 @@ pub mod charts_daily;
 pub mod days;
 pub mod frame;
 pub mod quotable;
+pub mod side;
 pub mod stats;
 pub mod template;
 pub mod xlsx;
 
-use frame::{Class, Row, Value};
+use frame::{Row, Value};
+pub use side::{
+    SideFormat, SideMeta, results_frame, side_files, write_side_output, write_side_output_with,
+    write_side_staged,
+};
 use template::{SheetKind, Template};
 use xlsx::{EfficiencyBlock, Group, Styles};
 
@@ -79,14 +85,6 @@ pub struct ReportInput<'a> {
     pub settings: &'a Settings,
     pub mapping: &'a [MappedColumn],
     pub about: About,
-}
-
-/// Machine-readable side output of the Results table.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
-#[serde(rename_all = "kebab-case")]
-pub enum SideFormat {
-    Csv,
-    Parquet,
 }
 
 /// A problem writing a report.
@@ -203,7 +201,8 @@ pub fn build_rows<'a>(input: &'a ReportInput<'a>) -> Result<Vec<Row<'a>>, Report
     Ok((0..n)
         .map(|i| Row {
             origin: &ing.origins[i],
-            site: ing.sites[i].as_str(),
+            // The report shows `Full Name (KEY)` where the site table gives a full name.
+            site: ing.site_label(&ing.sites[i]),
             obs: &ing.observations[i],
             res: &input.results[i],
             warnings: ing.row_warnings.get(i).map(Vec::as_slice).unwrap_or(&[]),
@@ -369,6 +368,10 @@ fn build_workbook(
             "hazebook {}, template {}",
             input.about.version, input.about.template_name
         ))
+        .set_custom_property(
+            "Generator",
+            format!("hazebook {}", input.about.version).as_str(),
+        )
         .set_creation_datetime(&created);
     wb.set_properties(&props);
     let styles = Styles::new(template);
@@ -425,6 +428,21 @@ fn build_workbook(
                 );
                 xlsx::write_summary(&mut wb, template, spec, &styles, rows, &groups, &keys, &qs)
                     .map_err(xerr)?;
+                if qs.is_empty() && !qnames.is_empty() {
+                    // Every quantity named needs a setting that is off (e.g. the two-stream
+                    // error columns): say so instead of leaving the sheet blank.
+                    let ws = wb.worksheet_from_name(&spec.name).map_err(xerr)?;
+                    ws.write_string(
+                        2,
+                        0,
+                        format!(
+                            "Not computed in this run: {} (the two-stream error columns need \
+                             [solver] error_estimate = true; the 24-hour ones need daily means).",
+                            qnames.join(", ")
+                        ),
+                    )
+                    .map_err(xerr)?;
+                }
             }
             SheetKind::Efficiency => {
                 let groupings = spec
@@ -479,98 +497,4 @@ fn build_workbook(
         first.set_active(true);
     }
     Ok(wb)
-}
-
-/// The Results table (every available column) as a polars frame at full precision: numbers
-/// as Float64 (null where not finite), times as Datetime[ms] (UTC), text as String.
-pub fn results_frame(input: &ReportInput) -> Result<DataFrame, ReportError> {
-    let rows = build_rows(input)?;
-    let cols = frame::drop_empty_uncertainty(
-        frame::available(frame::columns().iter().collect(), input.settings),
-        &rows,
-    );
-    let polars_err = |e: PolarsError| ReportError::Input {
-        message: format!("building the results table: {e}"),
-    };
-    let mut out: Vec<Column> = Vec::with_capacity(cols.len());
-    for c in cols {
-        let name: PlSmallStr = c.key.as_str().into();
-        let col = match c.class {
-            Class::Text => {
-                let v: Vec<Option<String>> = rows
-                    .iter()
-                    .map(|r| match c.value(r) {
-                        Value::Text(s) => Some(s.into_owned()),
-                        _ => None,
-                    })
-                    .collect();
-                Column::new(name, v)
-            }
-            Class::Time => {
-                let v: Vec<Option<i64>> = rows
-                    .iter()
-                    .map(|r| match c.value(r) {
-                        Value::Time(ms) => Some(ms),
-                        _ => None,
-                    })
-                    .collect();
-                Column::new(name, v)
-                    .cast(&DataType::Datetime(TimeUnit::Milliseconds, None))
-                    .map_err(polars_err)?
-            }
-            Class::Count => {
-                let v: Vec<Option<i64>> = rows
-                    .iter()
-                    .map(|r| {
-                        let x = c.number(r);
-                        x.is_finite().then_some(x as i64)
-                    })
-                    .collect();
-                Column::new(name, v)
-            }
-            _ => {
-                let v: Vec<Option<f64>> = rows
-                    .iter()
-                    .map(|r| {
-                        let x = c.number(r);
-                        x.is_finite().then_some(x)
-                    })
-                    .collect();
-                Column::new(name, v)
-            }
-        };
-        out.push(col);
-    }
-    DataFrame::new(rows.len(), out).map_err(polars_err)
-}
-
-/// Write the Results table at full precision as CSV or Parquet (atomically: a temporary
-/// file in the same folder, renamed into place when complete).
-///
-/// Errors: [`ReportError::Write`] when the folder is not writable.
-pub fn write_side_output(
-    path: &Path,
-    format: SideFormat,
-    input: &ReportInput,
-) -> Result<(), ReportError> {
-    let mut df = results_frame(input)?;
-    let mut tmp = temp_beside(path).map_err(|e| write_error(path, e))?;
-    {
-        let mut w = BufWriter::new(tmp.as_file_mut());
-        match format {
-            SideFormat::Csv => CsvWriter::new(&mut w)
-                .with_datetime_format(Some("%Y-%m-%dT%H:%M:%SZ".into()))
-                .finish(&mut df)
-                .map_err(|e| write_error(path, e))?,
-            SideFormat::Parquet => {
-                ParquetWriter::new(&mut w)
-                    .finish(&mut df)
-                    .map_err(|e| write_error(path, e))?;
-            }
-        }
-        w.flush().map_err(|e| write_error(path, e))?;
-    }
-    tmp.as_file().sync_all().map_err(|e| write_error(path, e))?;
-    tmp.persist(path).map_err(|e| write_error(path, e.error))?;
-    Ok(())
 }

@@ -456,7 +456,7 @@ fn statistic_unit(name: &str) -> &'static str {
     match name {
         "count" => "days (24-h) or obs.",
         "days" | "observations" => "count",
-        _ => "in Unit",
+        _ => "per row, see Unit",
     }
 }
 
@@ -742,8 +742,8 @@ pub fn write_rejected(
     let headers: [(&str, &str); 7] = [
         ("File", ""),
         ("Sheet", ""),
-        ("Row", "as shown"),
-        ("Cell", "A1"),
+        ("Row", ""),
+        ("Cell", ""),
         ("Column", "quantity"),
         ("Value", "as found"),
         ("Reason", ""),

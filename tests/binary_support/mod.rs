@@ -11,6 +11,7 @@ pub fn bin() -> Command {
 }
 
 /// The bundled (invented) sample inputs.
+#[allow(dead_code)] // not every test crate that includes this module reads the samples
 pub fn samples() -> PathBuf {
     Path::new(env!("CARGO_MANIFEST_DIR")).join("sample-inputs")
 }

@@ -27,6 +27,10 @@ Writes, deterministically (``%.10g``):
   sunrise equation cos h0 = -tan(lat) tan(decl); DISORT is integrated over hour angle from
   noon to sunset with 64 Gauss-Legendre nodes (doubled for the morning).
 
+* ``tests/fixtures/disort_albedo.csv`` -- one aerosol layer over bright surfaces (albedo
+  0.6-0.95: desert, snow, ice), the same columns as ``disort_layers.csv`` (``kind = bright``),
+  for the response of the TOA effect to the surface albedo.
+
 Run from the crate root:  .venv/bin/python tests/reference/disort_reference.py
 """
 
@@ -50,6 +54,12 @@ STACK_TAUS = [0.1, 0.3, 0.7]
 STACK_SSAS = SSAS
 STACK_GS = GS
 STACK_RAYLEIGH = [0.1, 0.3]
+
+BRIGHT_TAUS = [0.1, 0.3, 1.0]
+BRIGHT_SSAS = [0.85, 0.95, 0.99, 1.0]
+BRIGHT_GS = [0.6, 0.75]
+BRIGHT_MU0S = [0.3, 0.6, 0.95]
+BRIGHT_ALBEDOS = [0.6, 0.7, 0.8, 0.85, 0.9, 0.95]
 
 DAILY_LATS = [0.0, 30.0, 60.0, 75.0]
 DAILY_DAYS = [(2021, 3, 20, 79), (2021, 6, 21, 172), (2021, 12, 21, 355)]
@@ -125,6 +135,28 @@ def write_layers():
             out.write(",".join([r[0]] + [fmt(x) for x in r[1:]]) + "\n")
 
 
+def write_bright():
+    header = [
+        "kind", "tau", "ssa", "g", "mu0", "albedo", "tau_rayleigh",
+        "toa_up", "sfc_dn_direct", "sfc_dn_diffuse", "sfc_up",
+        "clean_toa_up", "clean_sfc_dn_direct", "clean_sfc_dn_diffuse", "clean_sfc_up",
+    ]
+    rows = []
+    for tau in BRIGHT_TAUS:
+        for ssa in BRIGHT_SSAS:
+            for g in BRIGHT_GS:
+                for mu0 in BRIGHT_MU0S:
+                    for a in BRIGHT_ALBEDOS:
+                        f = solve([(tau, ssa, g)], mu0, a)
+                        clean = (a, 1.0, 0.0, a)
+                        rows.append(["bright", tau, ssa, g, mu0, a, 0.0, *f, *clean])
+    path = os.path.join(FIXTURES, "disort_albedo.csv")
+    with open(path, "w", newline="\n") as out:
+        out.write(",".join(header) + "\n")
+        for r in rows:
+            out.write(",".join([r[0]] + [fmt(x) for x in r[1:]]) + "\n")
+
+
 def spencer_declination_rad(doy):
     """Spencer (1971), Iqbal (1983) eq. 1.3.1."""
     g = 2.0 * math.pi * (doy - 1) / 365.0
@@ -180,3 +212,4 @@ if __name__ == "__main__":
     os.makedirs(FIXTURES, exist_ok=True)
     write_layers()
     write_daily()
+    write_bright()

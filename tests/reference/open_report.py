@@ -10,8 +10,10 @@ start with the row identity and carry DRE columns; Rejected sheets have the seve
 a rejection; the About sheet states the cautions and the row reconciliation; no cell holds
 the text of a NaN or an infinity; every chart refers to sheets of the workbook. Exits 1 with one line per problem, 0 when all is well.
 
-CI runs it on the reports that `cargo test --release --test report_workbook` writes to
-target/tmp/report-*.xlsx (and on reports of the sample inputs).
+CI (.ci/run) runs it on every report the tests keep: with HAZEBOOK_TEST_REPORTS set to
+target/test-reports, tests/report_workbook.rs, tests/cli.rs and tests/merge.rs copy the
+reports they write there (tests/outside_readers/mod.rs); and on the reports of the sample
+inputs.
 """
 import re
 import sys

@@ -140,6 +140,7 @@ pub fn sample(n: usize) -> (Ingested, Vec<ObservationResult>) {
                 ..Flags::default()
             },
             uncertainty: None,
+            solver_error: Default::default(),
         };
         ing.sites.push(site.to_string());
         ing.origins.push(RowOrigin {
@@ -196,6 +197,7 @@ pub fn sample(n: usize) -> (Ingested, Vec<ObservationResult>) {
         letter: "F".into(),
         unit: "".into(),
         how: "detected".into(),
+        wavelength_pair_nm: None,
     }];
     ing.assumptions = vec![Assumption {
         quantity: "ozone".into(),
