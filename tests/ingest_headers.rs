@@ -566,9 +566,11 @@ fn metadata_spellings_are_read_with_their_units() {
     }
     let o = &ing.observations[0];
     assert_eq!(
-        (o.ozone_du, o.water_cm, o.pressure_hpa, o.layer.top_km),
-        (320.0, 1.2, Some(950.0), 3.0)
+        (o.ozone_du, o.pressure_hpa, o.layer.top_km),
+        (320.0, Some(950.0), 3.0)
     );
+    // 12 mm of precipitable water, converted to cm.
+    assert!((o.water_cm - 1.2).abs() < 1e-12, "{}", o.water_cm);
 }
 
 /// The workbook of the issue: an Ångström header hazebook cannot read, beside a notes
@@ -642,6 +644,20 @@ fn ignore_columns_are_declared_and_not_read() {
         .map(|c| (c.letter.as_str(), c.declared))
         .collect();
     assert_eq!(declared, [("E", false), ("H", true), ("I", true)]);
+    // Every built-in default needs declaring: the workbook gives no ozone, water, pressure,
+    // altitude, albedo or layer top either.
+    let problems = hazebook::ingest::strict_problems(&ing, &s);
+    assert_eq!(problems.len(), 8, "{problems:#?}");
+    s.defaults_allowed = [
+        "albedo",
+        "altitude",
+        "layer_top",
+        "ozone",
+        "pressure",
+        "water",
+    ]
+    .map(String::from)
+    .to_vec();
     let problems = hazebook::ingest::strict_problems(&ing, &s);
     assert_eq!(problems.len(), 2, "{problems:#?}");
     assert!(problems[0].contains("column E \"Ångström (fit)\" is not read"));

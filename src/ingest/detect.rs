@@ -734,6 +734,9 @@ pub(crate) fn resembles(kind: Kind, header: &str) -> bool {
         .iter()
         .flat_map(|n| n.split(' '))
         .filter(|w| w.len() >= 2 && !COMMON_WORDS.contains(w))
+        // A word that is itself the name of another quantity (`aod` in `aod angstrom
+        // exponent`) says the header is about that quantity, not this one.
+        .filter(|w| lookup(w).is_none_or(|k| k == kind))
         .collect();
     meaningful_words(header).iter().any(|t| {
         !COMMON_WORDS.contains(&t.as_str())
@@ -756,7 +759,7 @@ pub(crate) fn unrecognised_reason(header: &str) -> String {
         let head = words[..n].join(" ");
         if let Some(kind) = lookup(&head) {
             return format!(
-                "reads as {} followed by other words (\"{}\"), so it may not hold the measured value: not read (map it in the job file if it is)",
+                "reads as {} followed by other words (\"{}\"), so it may not hold the measured value; map it in the job file if it does",
                 kind.name(),
                 words[n..].join(" ")
             );

@@ -88,10 +88,17 @@ pub(crate) fn label_kind(label: &str) -> Option<(Kind, String)> {
     for text in [label, plain.as_str()] {
         let text = text.trim().trim_end_matches([':', '=']).trim();
         if let Some(h) = parse_header(text)
-            && site_kind(h.kind)
             && h.wavelength_nm.is_none()
         {
-            return Some((h.kind, h.unit));
+            // On a one-site metadata sheet the site's (full) name is the site.
+            let kind = if h.kind == Kind::SiteName {
+                Kind::Site
+            } else {
+                h.kind
+            };
+            if site_kind(kind) {
+                return Some((kind, h.unit));
+            }
         }
         let norm = tokens(text).join(" ");
         for (k, names) in EXTRA_LABELS {
