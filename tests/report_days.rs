@@ -211,7 +211,7 @@ fn site_by_day_sheet_in_the_full_template() {
     let found: Vec<(String, f64, f64)> = sh
         .rows()
         .skip(2)
-        .filter(|r| r[quantity].to_string() == "ΔF_TOA (24-h mean)")
+        .filter(|r| r[quantity] == "ΔF_TOA (24-h mean)")
         .map(|r| {
             let num = |d: &Data| match d {
                 Data::Float(x) => *x,

@@ -334,7 +334,14 @@ fn run_inner(a: &RunArgs, log: &Log) -> anyhow::Result<Status> {
     }
     if let Some(path) = &bundle_path {
         let t = Instant::now();
-        let bundle = bundle(&plan, &ing, &results, &asked_sites, outside_site);
+        let bundle = bundle(
+            &plan,
+            &ing,
+            &results,
+            &asked_sites,
+            outside_site,
+            &uncertainty_notes,
+        );
         let bytes = partial::to_bytes(path, &bundle)?;
         let tmp = staged.add(path).with_context(|| staging_error(path))?;
         std::fs::write(&tmp, bytes)
@@ -396,6 +403,10 @@ fn one_wavelength_assumptions(ing: &mut Ingested) {
             });
         }
     }
+    // In the order `merge` tallies them, so that a merged report lists them alike.
+    ing.assumptions.sort_by(|a, b| {
+        (&a.quantity, &a.value, a.source as u8).cmp(&(&b.quantity, &b.value, b.source as u8))
+    });
 }
 
 /// The job file's path for messages (or the inputs without one).
@@ -541,6 +552,7 @@ fn bundle(
     results: &[ObservationResult],
     sites: &[String],
     outside_site: usize,
+    uncertainty_notes: &[String],
 ) -> partial::Bundle {
     let rows = (0..results.len())
         .map(|i| partial::BundleRow {
@@ -574,6 +586,7 @@ fn bundle(
         site_columns: ing.site_columns.clone(),
         site_rules: ing.site_rules.clone(),
         site_labels: ing.site_labels.clone(),
+        uncertainty_notes: uncertainty_notes.to_vec(),
         content_sha256: None,
     }
 }

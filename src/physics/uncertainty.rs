@@ -360,7 +360,7 @@ fn sensitivities(
     step: f64,
 ) -> Option<[f64; QUANTITY_COUNT]> {
     let x = input_value(obs, i);
-    if !(step > 0.0) || !x.is_finite() {
+    if step.is_nan() || step <= 0.0 || !x.is_finite() {
         return None;
     }
     let h = if x + step > upper_bound(i) {
@@ -455,7 +455,9 @@ pub fn central_difference(
     h: f64,
 ) -> Option<[f64; QUANTITY_COUNT]> {
     let x = input_value(obs, i);
-    if !(h > 0.0) || !(x + h <= upper_bound(i)) || !(x - h >= lower_bound(obs, i)) {
+    // Written so that a NaN anywhere refuses the step.
+    let inside = h > 0.0 && x + h <= upper_bound(i) && x - h >= lower_bound(obs, i);
+    if !inside {
         return None;
     }
     let up = compute_observation(&shifted(obs, i, h), settings, ctx);
@@ -489,7 +491,7 @@ pub fn monte_carlo(
         for i in Input::ALL {
             if let Some(d) = declared.get(i) {
                 let sigma = d.sigma(input_value(obs, i));
-                let z = rng.next();
+                let z = rng.sample();
                 if sigma > 0.0 && sigma.is_finite() {
                     o = shifted(&o, i, sigma * z);
                 }
@@ -538,7 +540,7 @@ impl Normal {
     }
 
     /// Next standard normal deviate.
-    pub fn next(&mut self) -> f64 {
+    pub fn sample(&mut self) -> f64 {
         if let Some(s) = self.spare.take() {
             return s;
         }
@@ -605,13 +607,13 @@ mod tests {
     #[test]
     fn normal_deviates_are_standard() {
         let mut g = Normal::new(7);
-        let v: Vec<f64> = (0..20_000).map(|_| g.next()).collect();
+        let v: Vec<f64> = (0..20_000).map(|_| g.sample()).collect();
         let m = v.iter().sum::<f64>() / v.len() as f64;
         let sd = (v.iter().map(|x| (x - m).powi(2)).sum::<f64>() / (v.len() - 1) as f64).sqrt();
         assert!(m.abs() < 0.03, "{m}");
         assert!((sd - 1.0).abs() < 0.03, "{sd}");
         // Fixed seed, fixed sequence.
-        assert_eq!(Normal::new(7).next(), Normal::new(7).next());
+        assert_eq!(Normal::new(7).sample(), Normal::new(7).sample());
     }
 
     #[test]

@@ -324,7 +324,7 @@ pub fn write_charts(
 }
 
 /// A series name as literal text (a leading `=` would make it a cell reference).
-fn series_label(s: &str) -> String {
+pub(super) fn series_label(s: &str) -> String {
     // `Gull!A1` would be read as a cell of a sheet "Gull" (an unknown sheet fails the whole
     // write): a word joiner (U+2060, invisible) after the `!` keeps it a plain name.
     let s = match s.find('!') {

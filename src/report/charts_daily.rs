@@ -165,7 +165,7 @@ pub fn daily_charts(
                 let color = color_of(s);
                 let series = chart
                     .add_series()
-                    .set_name(s.as_str())
+                    .set_name(super::charts::series_label(s).as_str())
                     .set_categories((data_name, 2, col, last, col))
                     .set_values((data_name, 2, c, last, c))
                     .set_format(ChartFormat::new().set_no_line())
@@ -211,7 +211,7 @@ pub fn daily_charts(
             };
             chart
                 .add_series()
-                .set_name(name.as_str())
+                .set_name(super::charts::series_label(&name).as_str())
                 .set_categories((data_name, 2, c + 2, last, c + 2))
                 .set_values((data_name, 2, c, last, c))
                 .set_format(ChartFormat::new().set_no_line())
