@@ -397,13 +397,15 @@ fn long_name(c: &ColumnDef) -> String {
 
 /// Flag names of the `flags` variable in mask order (the names of the csv/parquet `flags`
 /// column, [`Flags::names`]).
-pub const FLAG_MEANINGS: [&str; 6] = [
+pub const FLAG_MEANINGS: [&str; 8] = [
     "sun-below-horizon",
     "low-sun",
     "ssa-extrapolated",
     "g-extrapolated",
     "polar-night",
     "polar-day",
+    "ssa-one-wavelength",
+    "g-one-wavelength",
 ];
 
 /// The flags of one result as bits 1, 2, 4, … in the order of [`FLAG_MEANINGS`].
@@ -415,6 +417,8 @@ pub fn flag_bits(f: &Flags) -> i16 {
         f.asymmetry_extrapolated,
         f.polar_night,
         f.polar_day,
+        f.ssa_one_wavelength,
+        f.asymmetry_one_wavelength,
     ]
     .iter()
     .enumerate()
@@ -824,10 +828,18 @@ pub fn netcdf_results(input: &ReportInput, meta: &SideMeta) -> Result<Vec<u8>, R
                     Data::I16(rows.iter().map(|r| flag_bits(&r.res.flags)).collect()),
                 ));
                 b.text("flags", "long_name", "computation flags")?;
-                b.ds.add_var_attr_i16("flags", "flag_masks", (0..6).map(|i| 1i16 << i).collect())
-                    .map_err(nc_err)?;
-                b.ds.add_var_attr_i16("flags", "valid_range", vec![0, 63])
-                    .map_err(nc_err)?;
+                b.ds.add_var_attr_i16(
+                    "flags",
+                    "flag_masks",
+                    (0..FLAG_MEANINGS.len()).map(|i| 1i16 << i).collect(),
+                )
+                .map_err(nc_err)?;
+                b.ds.add_var_attr_i16(
+                    "flags",
+                    "valid_range",
+                    vec![0, (1i16 << FLAG_MEANINGS.len()) - 1],
+                )
+                .map_err(nc_err)?;
                 b.text("flags", "flag_meanings", &FLAG_MEANINGS.join(" "))?;
                 b.text("flags", "coordinates", &obs_coordinates(key))?;
                 continue;
@@ -1074,4 +1086,32 @@ pub fn command_line() -> String {
         })
         .collect::<Vec<_>>()
         .join(" ")
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// Every flag a result can carry has its mask and meaning, in the order of the text names,
+    /// so that the NetCDF `flags` decode to the csv/parquet `flags` text.
+    #[test]
+    fn every_flag_has_a_mask_and_meaning() {
+        let all = Flags {
+            sun_below_horizon: true,
+            low_sun: true,
+            ssa_extrapolated: true,
+            asymmetry_extrapolated: true,
+            polar_night: true,
+            polar_day: true,
+            ssa_one_wavelength: true,
+            asymmetry_one_wavelength: true,
+        };
+        assert_eq!(all.names(), FLAG_MEANINGS.to_vec());
+        assert_eq!(flag_bits(&all), (1i16 << FLAG_MEANINGS.len()) - 1);
+        let one = Flags {
+            asymmetry_one_wavelength: true,
+            ..Flags::default()
+        };
+        assert_eq!(flag_bits(&one), 1 << 7);
+    }
 }
