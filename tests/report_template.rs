@@ -55,7 +55,10 @@ fn unknown_key_names_the_line_and_the_known_keys() {
     let top = "name = \"x\"\nsheets = 3\n";
     let m = message(template::parse(top, "t").unwrap_err());
     assert!(
-        m.contains("line 2") && m.contains("known keys: name, description, formats, widths, sheet"),
+        m.contains("line 2")
+            && m.contains(
+                "known keys: name, description, formats, widths, min_observations_per_day, propagate_uncertainty, sheet"
+            ),
         "{m}"
     );
 }

@@ -32,11 +32,13 @@ fn sheets_come_in_template_order() {
         names,
         [
             "About",
+            "Summary for papers",
             "Results",
             "Site x month",
             "Two-stream error",
             "Site",
             "Site x season",
+            "Site x day",
             "Efficiency",
             "Charts",
             "Charts data",
@@ -56,10 +58,11 @@ fn results_headers_units_and_numbers_match_the_given_results() {
     let path = write_full(dir.path(), n, WriteOptions::default());
     let (ing, res) = sample(n);
     let r = sheet(&path, "Results");
-    // The two-stream error columns appear only when the run estimates it (off here).
+    // The two-stream error and uncertainty columns appear only when the run estimates them
+    // (off here).
     let cols: Vec<_> = frame::columns()
         .iter()
-        .filter(|c| c.group != "solver_error")
+        .filter(|c| c.group != "solver_error" && c.group != "uncertainty")
         .collect();
     for (j, c) in cols.iter().enumerate() {
         assert_eq!(text(&r, 0, j), c.header, "header of column {j}");
@@ -134,34 +137,69 @@ fn site_statistics_equal_an_independent_computation() {
         c("95% CI high"),
         c("Median"),
     );
-    assert_eq!(text(&r, 1, cn), "count");
+    assert_eq!(text(&r, 1, cn), "days (24-h) or obs.");
     let mut checked = 0;
     for row in 2..r.height() {
         let site = text(&r, row, 0);
         let q = text(&r, row, 1);
-        let values: Vec<f64> = match q.as_str() {
-            "ΔF_TOA (24-h mean)" => (0..n)
-                .filter(|&i| ing.sites[i] == site)
-                .map(|i| res[i].daily.dre_toa)
-                .collect(),
-            // Instantaneous: only rows with the sun up.
-            "ΔF_SFC (instantaneous)" => (0..n)
-                .filter(|&i| ing.sites[i] == site && !res[i].flags.sun_below_horizon)
-                .map(|i| res[i].instantaneous.dre_sfc)
-                .collect(),
+        // Statistics over site-days (Cochran 1977 cluster sampling for the instantaneous
+        // quantity, days as blocks); the day is the local mean-solar date.
+        let day_of = |i: usize| {
+            let o = &ing.observations[i];
+            let shift = chrono::Duration::seconds((o.longitude_deg * 240.0).round() as i64);
+            (o.time_utc + shift).date_naive()
+        };
+        let by_day = |pick: &dyn Fn(usize) -> Option<f64>| {
+            let mut d: std::collections::BTreeMap<chrono::NaiveDate, Vec<f64>> = Default::default();
+            for i in (0..n).filter(|&i| ing.sites[i] == site) {
+                if let Some(x) = pick(i) {
+                    d.entry(day_of(i)).or_default().push(x);
+                }
+            }
+            d.into_values().collect::<Vec<_>>()
+        };
+        let (values, k, se, dof) = match q.as_str() {
+            "ΔF_TOA (24-h mean)" => {
+                let days = by_day(&|i| Some(res[i].daily.dre_toa));
+                let means: Vec<f64> = days
+                    .iter()
+                    .map(|v| v.iter().sum::<f64>() / v.len() as f64)
+                    .collect();
+                let k = means.len() as f64;
+                let (_, s) = mean_sd(&means);
+                (means, k, s / k.sqrt(), k - 1.0)
+            }
+            // Instantaneous: only rows with the sun up; per-observation mean and SD, the SE
+            // with days as blocks.
+            "ΔF_SFC (instantaneous)" => {
+                let days = by_day(&|i| {
+                    (!res[i].flags.sun_below_horizon).then_some(res[i].instantaneous.dre_sfc)
+                });
+                let all: Vec<f64> = days.iter().flatten().copied().collect();
+                let big_n = all.len() as f64;
+                let mean = all.iter().sum::<f64>() / big_n;
+                let d = days.len() as f64;
+                let ss: f64 = days
+                    .iter()
+                    .map(|v| {
+                        let nd = v.len() as f64;
+                        let yd = v.iter().sum::<f64>() / nd;
+                        nd * nd * (yd - mean).powi(2)
+                    })
+                    .sum();
+                let se = (d / (d - 1.0) * ss / (big_n * big_n)).sqrt();
+                (all, big_n, se, d - 1.0)
+            }
             _ => continue,
         };
-        let k = values.len() as f64;
         let (m, s) = mean_sd(&values);
-        let t = StudentsT::new(0.0, 1.0, k - 1.0)
-            .unwrap()
-            .inverse_cdf(0.975);
+        let t = StudentsT::new(0.0, 1.0, dof).unwrap().inverse_cdf(0.975);
         assert_eq!(num(&r, row, cn), Some(k), "{site} {q}");
         assert!(close6(num(&r, row, cmean).unwrap(), m), "{site} {q} mean");
         assert!(close6(num(&r, row, csd).unwrap(), s), "{site} {q} sd");
-        assert!(close6(num(&r, row, cse).unwrap(), s / k.sqrt()));
-        assert!(close6(num(&r, row, clo).unwrap(), m - t * s / k.sqrt()));
-        assert!(close6(num(&r, row, chi).unwrap(), m + t * s / k.sqrt()));
+        assert!(close6(num(&r, row, cse).unwrap(), se), "{site} {q} se");
+        assert!(close6(num(&r, row, clo).unwrap(), m - t * se));
+        assert!(close6(num(&r, row, chi).unwrap(), m + t * se));
         let mut sorted = values.clone();
         sorted.sort_by(f64::total_cmp);
         let h = (sorted.len() - 1) as f64 * 0.5;
@@ -220,13 +258,34 @@ fn efficiency_slopes_equal_an_independent_ols() {
     );
     let mut checked = 0;
     for row in 2..r.height() {
-        if text(&r, row, 1) != "all" || text(&r, row, 2) != "ΔF_SFC (24-h mean)" {
+        // Columns: site, season, year, month ("all" where the fit is over the whole period).
+        if text(&r, row, 1) != "all"
+            || text(&r, row, 3) != "all"
+            || text(&r, row, col_of(&r, "Quantity")) != "ΔF_SFC (24-h mean)"
+        {
             continue;
         }
         let site = text(&r, row, 0);
-        let p: Vec<(f64, f64)> = (0..n)
-            .filter(|&i| ing.sites[i] == site)
-            .map(|i| (res[i].aod_550, res[i].daily.dre_sfc))
+        // 24-hour quantities are fitted over site-days: day means of AOD(550) and ΔF, the day
+        // being the local mean-solar date (UTC + longitude/15 h).
+        let mut days: std::collections::BTreeMap<chrono::NaiveDate, Vec<(f64, f64)>> =
+            Default::default();
+        for i in (0..n).filter(|&i| ing.sites[i] == site) {
+            let o = &ing.observations[i];
+            let shift = chrono::Duration::seconds((o.longitude_deg * 240.0).round() as i64);
+            days.entry((o.time_utc + shift).date_naive())
+                .or_default()
+                .push((res[i].aod_550, res[i].daily.dre_sfc));
+        }
+        let p: Vec<(f64, f64)> = days
+            .values()
+            .map(|v| {
+                let k = v.len() as f64;
+                (
+                    v.iter().map(|q| q.0).sum::<f64>() / k,
+                    v.iter().map(|q| q.1).sum::<f64>() / k,
+                )
+            })
             .collect();
         let k = p.len() as f64;
         let mx = p.iter().map(|q| q.0).sum::<f64>() / k;
@@ -346,9 +405,10 @@ fn long_results_continue_on_further_sheets() {
     }
     let expected: Vec<u32> = ing.origins.iter().map(|o| o.row).collect();
     assert_eq!(seen, expected);
-    // Order: Results sheets together, right after About.
-    assert_eq!(names[1], "Results");
-    assert_eq!(names[7], "Results (7)");
+    // Order: Results sheets together, right after About and the summary for papers.
+    assert_eq!(names[1], "Summary for papers");
+    assert_eq!(names[2], "Results");
+    assert_eq!(names[8], "Results (7)");
 }
 
 #[test]
@@ -526,7 +586,8 @@ fn chart_data_hold_monthly_means_and_fitted_lines() {
         .find(|&k| {
             text(&e, k, 0) == "Brackwater"
                 && text(&e, k, 1) == "all"
-                && text(&e, k, 2) == "ΔF_TOA (24-h mean)"
+                && text(&e, k, 3) == "all"
+                && text(&e, k, col_of(&e, "Quantity")) == "ΔF_TOA (24-h mean)"
         })
         .unwrap();
     let b = num(&e, row, col_of(&e, "Slope (efficiency)")).unwrap();

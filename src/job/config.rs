@@ -41,6 +41,9 @@ pub struct JobFile {
     pub solver: SolverSection,
     #[serde(default)]
     pub report: ReportSection,
+    /// Declared input uncertainties (`[uncertainty]`, see `job::uncertainty`).
+    #[serde(default)]
+    pub uncertainty: super::uncertainty::UncertaintySection,
 }
 
 /// `[input]`: files, sheets, layout and mapping overrides.
@@ -220,6 +223,8 @@ pub struct ReportSection {
     pub folder: Option<String>,
     /// Results at full precision beside the workbook.
     pub side_output: Option<SideFormat>,
+    /// Observations a site-day needs to count in the statistics (overrides the template's).
+    pub min_observations_per_day: Option<usize>,
     /// Institution that produced the results (the NetCDF `institution` attribute).
     pub institution: Option<String>,
 }
@@ -231,6 +236,7 @@ impl Default for ReportSection {
             output: DEFAULT_OUTPUT_NAME.into(),
             folder: None,
             side_output: None,
+            min_observations_per_day: None,
             institution: None,
         }
     }

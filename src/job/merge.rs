@@ -498,6 +498,12 @@ fn notes(
     {
         v.push(site_filter_note(&sites));
     }
+    match common(bundles, |b| b.uncertainty_notes.clone()) {
+        Some(u) => v.extend(u),
+        None => v.push(
+            "The partial results declare different input uncertainties (see each job file).".into(),
+        ),
+    }
     // Sorted by file name, so the report does not depend on the order the bundles are given.
     let mut listed: Vec<(&PathBuf, &Bundle)> = paths.iter().zip(bundles).collect();
     listed.sort_by_key(|(p, _)| p.file_name().map(|n| n.to_os_string()));

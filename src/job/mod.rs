@@ -13,3 +13,4 @@ pub mod plan;
 pub mod run;
 pub mod summary;
 pub mod templates;
+pub mod uncertainty;

@@ -100,6 +100,10 @@ pub struct Bundle {
     /// Site key → report label (`Harlsby Flats (HRF)`).
     #[serde(default)]
     pub site_labels: BTreeMap<String, String>,
+    /// About-sheet notes on the input uncertainties that were propagated (absent in older
+    /// bundles).
+    #[serde(default)]
+    pub uncertainty_notes: Vec<String>,
     /// Lower-case hex SHA-256 of the bundle's bytes before this field, which the writer
     /// appends last ([`to_bytes`]); checked by [`read_checked`] so that edited results are
     /// noticed. Never serialised by serde.
@@ -396,6 +400,7 @@ mod tests {
                 sun_below_horizon: true,
                 ..Flags::default()
             },
+            uncertainty: None,
             solver_error: Default::default(),
         };
         let s = serde_json::to_string(&r).unwrap();

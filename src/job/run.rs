@@ -20,6 +20,7 @@ use crate::cli::{RunArgs, Status};
 use crate::ingest::{self, Ingested};
 use crate::physics::ObservationResult;
 use crate::physics::forcing::{Context, compute_batch_with_context};
+use crate::physics::uncertainty::propagate_batch;
 use crate::report::{self, About, ReportInput, SideFormat, SideMeta, WriteOptions, template};
 
 /// Above this many results the workbook is compressed faster (zip level 1): most of a large
@@ -48,7 +49,28 @@ fn run_inner(a: &RunArgs, log: &Log) -> anyhow::Result<Status> {
         side_output: a.outputs.side_output.map(Into::into),
     };
     let mut plan = plan::build(&a.select, &ov)?;
-    let tpl = template::load(&plan.template)?;
+    let mut tpl = template::load(&plan.template)?;
+    let uncertainty = plan
+        .job
+        .as_ref()
+        .map(|j| j.file.uncertainty.clone())
+        .unwrap_or_default();
+    let (declared, uncertainty_notes) = uncertainty
+        .resolve(tpl.propagate_uncertainty)
+        .map_err(|m| anyhow::anyhow!("{}: {m}", inputs_text_job(&plan)))?;
+    if let Some(n) = plan
+        .job
+        .as_ref()
+        .and_then(|j| j.file.report.min_observations_per_day)
+    {
+        if n == 0 {
+            bail!(
+                "{}: [report] min_observations_per_day: expected a whole number of at least 1, found 0",
+                inputs_text_job(&plan)
+            );
+        }
+        tpl.min_observations_per_day = n;
+    }
     log.info(&format!(
         "hazebook {} — job {}{}",
         env!("CARGO_PKG_VERSION"),
@@ -102,6 +124,8 @@ fn run_inner(a: &RunArgs, log: &Log) -> anyhow::Result<Status> {
             ing.counts.read
         );
     }
+    // Tallied over the rows of the period before the site filter, like ingestion's.
+    one_wavelength_assumptions(&mut ing);
     // File-name forms of the sites, from every site read (before a site filter), so that
     // partitions of one reading agree and no two sites share an output.
     let site_names = site_file_names(&ing.sites).map_err(anyhow::Error::msg)?;
@@ -125,9 +149,19 @@ fn run_inner(a: &RunArgs, log: &Log) -> anyhow::Result<Status> {
     let t = Instant::now();
     let results = compute(&ing, &plan, log);
     let before = ing.rejected.len();
-    let results = ingest::reject_uncomputable(&mut ing, results, &plan.settings);
+    let mut results = ingest::reject_uncomputable(&mut ing, results, &plan.settings);
     for r in &ing.rejected[before..] {
         log.warn(&format!("rejected after the radiative transfer: {r}"));
+    }
+    for (o, r) in ing.observations.iter().zip(results.iter_mut()) {
+        crate::physics::spectral_flags::refine(o, &plan.settings, &mut r.flags);
+    }
+    if !declared.is_empty() {
+        let ctx = Context::new(&plan.settings);
+        let u = propagate_batch(&ing.observations, &results, &plan.settings, &ctx, &declared);
+        for (r, u) in results.iter_mut().zip(u) {
+            r.uncertainty = Some(u);
+        }
     }
     let t_physics = t.elapsed().as_secs_f64();
 
@@ -249,6 +283,7 @@ fn run_inner(a: &RunArgs, log: &Log) -> anyhow::Result<Status> {
             created_utc: created,
             notes: {
                 let mut n = notes(&plan, site.as_deref(), &asked_sites);
+                n.extend(uncertainty_notes.iter().cloned());
                 if sub_res.len() > LARGE_REPORT_ROWS {
                     n.push(format!(
                         "More than {LARGE_REPORT_ROWS} results: the workbook is compressed at zip level {LARGE_REPORT_ZIP_LEVEL} for speed (about a quarter larger than at the default level 6)."
@@ -299,7 +334,14 @@ fn run_inner(a: &RunArgs, log: &Log) -> anyhow::Result<Status> {
     }
     if let Some(path) = &bundle_path {
         let t = Instant::now();
-        let bundle = bundle(&plan, &ing, &results, &asked_sites, outside_site);
+        let bundle = bundle(
+            &plan,
+            &ing,
+            &results,
+            &asked_sites,
+            outside_site,
+            &uncertainty_notes,
+        );
         let bytes = partial::to_bytes(path, &bundle)?;
         let tmp = staged.add(path).with_context(|| staging_error(path))?;
         std::fs::write(&tmp, bytes)
@@ -339,6 +381,42 @@ fn run_inner(a: &RunArgs, log: &Log) -> anyhow::Result<Status> {
 }
 
 /// Compute every observation on all cores, with a progress bar on a terminal.
+/// Rows whose SSA or g was given at one wavelength (held over the whole spectrum; flagged by
+/// [`crate::physics::spectral_flags::refine`]), counted among the assumptions.
+fn one_wavelength_assumptions(ing: &mut Ingested) {
+    let ssa = ing.observations.iter().filter(|o| o.ssa.len() == 1).count();
+    let g = ing
+        .observations
+        .iter()
+        .filter(|o| o.asymmetry.len() == 1)
+        .count();
+    for (quantity, rows) in [
+        ("ssa spectral dependence", ssa),
+        ("asymmetry spectral dependence", g),
+    ] {
+        if rows > 0 {
+            ing.assumptions.push(ingest::Assumption {
+                quantity: quantity.into(),
+                value: "given at one wavelength, held constant over the whole spectrum".into(),
+                source: ingest::ValueSource::BuiltIn,
+                rows,
+            });
+        }
+    }
+    // In the order `merge` tallies them, so that a merged report lists them alike.
+    ing.assumptions.sort_by(|a, b| {
+        (&a.quantity, &a.value, a.source as u8).cmp(&(&b.quantity, &b.value, b.source as u8))
+    });
+}
+
+/// The job file's path for messages (or the inputs without one).
+fn inputs_text_job(plan: &Plan) -> String {
+    match &plan.job {
+        Some(j) => j.path.display().to_string(),
+        None => inputs_text(plan),
+    }
+}
+
 fn compute(ing: &Ingested, plan: &Plan, log: &Log) -> Vec<ObservationResult> {
     let ctx = Context::new(&plan.settings);
     let pb = log.progress(ing.observations.len() as u64, "physics");
@@ -474,6 +552,7 @@ fn bundle(
     results: &[ObservationResult],
     sites: &[String],
     outside_site: usize,
+    uncertainty_notes: &[String],
 ) -> partial::Bundle {
     let rows = (0..results.len())
         .map(|i| partial::BundleRow {
@@ -507,6 +586,7 @@ fn bundle(
         site_columns: ing.site_columns.clone(),
         site_rules: ing.site_rules.clone(),
         site_labels: ing.site_labels.clone(),
+        uncertainty_notes: uncertainty_notes.to_vec(),
         content_sha256: None,
     }
 }

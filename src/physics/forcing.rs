@@ -1072,6 +1072,7 @@ fn compute_with(
         daily,
         daylight_hours,
         flags,
+        uncertainty: None,
         solver_error,
     }
 }

@@ -18,9 +18,11 @@ pub mod gases;
 pub mod rayleigh;
 pub mod references;
 pub mod solar;
+pub mod spectral_flags;
 pub mod spectrum;
 pub mod surface;
 pub mod two_stream;
 mod types;
+pub mod uncertainty;
 
 pub use types::*;

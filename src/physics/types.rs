@@ -273,6 +273,13 @@ pub struct Flags {
     pub polar_night: bool,
     /// No sunset on the day.
     pub polar_day: bool,
+    /// SSA given at one wavelength and held over the whole spectrum
+    /// ([`super::spectral_flags::refine`]).
+    #[serde(default)]
+    pub ssa_one_wavelength: bool,
+    /// g given at one wavelength and held over the whole spectrum.
+    #[serde(default)]
+    pub asymmetry_one_wavelength: bool,
 }
 
 impl Flags {
@@ -296,6 +303,12 @@ impl Flags {
         }
         if self.polar_day {
             v.push("polar-day");
+        }
+        if self.ssa_one_wavelength {
+            v.push("ssa-one-wavelength");
+        }
+        if self.asymmetry_one_wavelength {
+            v.push("g-one-wavelength");
         }
         v
     }
@@ -321,6 +334,10 @@ pub struct ObservationResult {
     #[serde(with = "serde_float::float")]
     pub daylight_hours: f64,
     pub flags: Flags,
+    /// Propagated input uncertainty and sensitivities, when uncertainties were declared
+    /// ([`super::uncertainty::propagate`]).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub uncertainty: Option<super::uncertainty::RowUncertainty>,
     /// Two-stream minus accurate DRE, when [`Settings::error_estimate`] is set (NaN
     /// otherwise).
     #[serde(default)]

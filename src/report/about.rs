@@ -64,15 +64,23 @@ pub const CAUTIONS: &[&str] = &[
     "These results support research; they are not a substitute for an assessment done under a recognised protocol.",
 ];
 
+/// How to read some results (shown with the cautions).
+pub const INTERPRETATION: &[&str] = &[
+    "ΔF_ATM can be slightly negative for a nearly conservative aerosol (SSA close to 1): the aerosol reflects sunlight that water vapour and other gases below it would have absorbed, so the atmosphere absorbs a little less with the aerosol than without. It means the aerosol itself absorbs almost nothing, not that it cools the air by emission.",
+    "Flags: ssa-one-wavelength / g-one-wavelength mark rows whose SSA or g was given at one wavelength and held over the whole spectrum (counted among the assumptions); ssa-extrapolated / g-extrapolated mark rows whose values given at several wavelengths were held beyond them over bands carrying at least 10% of the energy the aerosol intercepts (incident irradiance × AOD).",
+];
+
 /// Definitions behind the summary and efficiency sheets.
 pub fn statistics_notes() -> Vec<String> {
     vec![
-        "n counts the finite values of the quantity in the group; empty cells mean the statistic cannot be computed (for example SD of one value).".into(),
-        "SD is the sample standard deviation (n − 1); SE = SD/√n.".into(),
+        "n counts the statistical units of the quantity in the group (site-days for 24-hour quantities, observations otherwise); empty cells mean the statistic cannot be computed (for example SD of one value).".into(),
+        "SD is the sample standard deviation (n − 1); SE = SD/√n for 24-hour quantities (over days).".into(),
         "95% CI of the mean: mean ± t(0.975, n − 1)·SE with the Student t distribution (statrs).".into(),
         "Percentiles (P5, P25, median, P75, P95) by linear interpolation between order statistics, Hyndman & Fan (1996) definition 7 (h = (n − 1)p).".into(),
         "Instantaneous quantities are summarised and regressed over rows with the sun above the horizon only.".into(),
         "Efficiency: ordinary least-squares slope of ΔF against AOD(550 nm) with its standard error √(s²/Sxx), s² = RSS/(n − 2); R² = 1 − RSS/Syy; and the least-squares slope through the origin Σxy/Σx².".into(),
+        "Efficiency fits of 24-hour quantities are over site-days (day means of AOD(550) and ΔF), per site and season or month, where insolation is comparable; a fit over rows of several seasons is marked as pooled and no pooled line is drawn on the charts. The intercept is ΔF at AOD 0: physically zero, so a non-zero intercept says ΔF is not proportional to AOD within the group (SSA, g or insolation changing with AOD); the slope through the origin is the efficiency of a strictly proportional response.".into(),
+        "Normalised efficiency = ΔF / (AOD(550) × incident TOA flux), 24-hour means: the fraction of the incident flux per unit AOD, comparable between seasons and latitudes; the normalised slope is the fitted slope divided by the group's mean incident TOA flux.".into(),
         "Groups by year, month, season and date use UTC; seasons are DJF, MAM, JJA, SON.".into(),
     ]
 }
@@ -454,10 +462,13 @@ pub fn write_about(
     for n in statistics_notes() {
         pair(ws, &mut cur, "", &n)?;
     }
+    for n in super::days::about_notes(t.min_observations_per_day) {
+        pair(ws, &mut cur, "", &n)?;
+    }
 
     // Cautions.
     section(ws, &mut cur, "Cautions")?;
-    for c in CAUTIONS {
+    for c in CAUTIONS.iter().chain(INTERPRETATION) {
         pair(ws, &mut cur, "", c)?;
     }
 

@@ -174,7 +174,8 @@ pub fn write_charts(
             for (k, r) in rows.iter().enumerate() {
                 per_site[site_index(r.site)].push(k);
             }
-            let mut series: Vec<(usize, u16, u32)> = Vec::new(); // site, first col, last point row
+            // site, first col, last point row, fit drawn
+            let mut series: Vec<(usize, u16, u32, bool)> = Vec::new();
             for (i, s) in sites.iter().enumerate() {
                 let c = col + 6 * i as u16;
                 let heads: [(String, &str); 6] = [
@@ -198,7 +199,13 @@ pub fn write_charts(
                     put_number(ws, r, c + 2, stat_value(sfc, row), styles.class(Class::Dre))?;
                     r += 1;
                 }
+                // No line through rows of several seasons: insolation differs, so a pooled
+                // fit is not one relation (the Efficiency sheet fits per season).
+                let one_season = xlsx::pooled_note(rows, idx).is_none();
                 for (k, q) in [toa, sfc].into_iter().enumerate() {
+                    if !one_season {
+                        break;
+                    }
                     let fit = xlsx::fit_rows(q, rows, idx);
                     if let (Some(b), Some(a), Some(x0), Some(x1)) =
                         (fit.slope, fit.intercept, fit.x_min, fit.x_max)
@@ -221,20 +228,20 @@ pub fn write_charts(
                         )?;
                     }
                 }
-                series.push((i, c, r - 1));
+                series.push((i, c, r - 1, one_season));
                 last_data_row = last_data_row.max(r - 1).max(3);
             }
             for (which, q, off) in [("TOA", toa, 1u16), ("surface", sfc, 2u16)] {
                 let mut chart = Chart::new(ChartType::Scatter);
                 chart.title().set_name(&format!(
-                    "{} against AOD(550) with the fitted line",
+                    "{} against AOD(550), fitted line where one season",
                     q.header
                 ));
                 chart.x_axis().set_name("AOD(550 nm) [unitless]");
                 chart
                     .y_axis()
                     .set_name(&format!("{} [{}]", q.header, q.unit));
-                for &(i, c, last) in &series {
+                for &(i, c, last, fitted) in &series {
                     let color = site_color(i);
                     if last >= 2 {
                         chart
@@ -254,6 +261,9 @@ pub fn write_charts(
                                     ),
                             );
                     }
+                    if !fitted {
+                        continue;
+                    }
                     chart
                         .add_series()
                         .set_name(series_label(&format!("{} fit", sites[i])).as_str())
@@ -270,6 +280,29 @@ pub fn write_charts(
                 charts.push((chart_row, c, chart));
             }
         }
+        let want_daily = daily_mean && kinds.contains(&ChartKind::DailyDre);
+        let want_toa_sfc = daily_mean && kinds.contains(&ChartKind::ToaVsSurface);
+        if (want_daily || want_toa_sfc) && !rows.is_empty() {
+            if kinds.contains(&ChartKind::DreVsAod) {
+                chart_row += 20;
+            }
+            let start = widths.len() as u16;
+            let (more, last) = super::charts_daily::daily_charts(
+                ws,
+                styles,
+                &mut widths,
+                data_name,
+                start,
+                rows,
+                want_daily,
+                want_toa_sfc,
+            )?;
+            last_data_row = last_data_row.max(last);
+            for (k, chart) in more.into_iter().enumerate() {
+                let r = chart_row + 20 * (k / 2) as u32;
+                charts.push((r, if k % 2 == 0 { 0 } else { 10 }, chart));
+            }
+        }
         if rows.is_empty() {
             ws.write_string(0, 0, "No computed rows: nothing to plot.")?;
         }
@@ -281,7 +314,7 @@ pub fn write_charts(
     let ws = wb.worksheet_from_index(charts_ws_index)?;
     let note = format!(
         "Charts of the {when} direct radiative effect; the plotted numbers are on sheet \"{data_name}\". \
-         One colour per site on every chart. Lines on the scatter charts are the OLS fits of the Efficiency sheet."
+         One colour per site on every chart. Lines on the scatter charts are the OLS fits of the Efficiency sheet, drawn only for a site whose rows lie in one season (a fit pooled over seasons mixes insolation with AOD)."
     );
     ws.write_string_with_format(0, 0, &note, &styles.label)?;
     for (r, c, chart) in &charts {
@@ -291,7 +324,7 @@ pub fn write_charts(
 }
 
 /// A series name as literal text (a leading `=` would make it a cell reference).
-fn series_label(s: &str) -> String {
+pub(super) fn series_label(s: &str) -> String {
     // `Gull!A1` would be read as a cell of a sheet "Gull" (an unknown sheet fails the whole
     // write): a word joiner (U+2060, invisible) after the `!` keeps it a plain name.
     let s = match s.find('!') {

@@ -8,6 +8,7 @@ use std::sync::LazyLock;
 use chrono::{DateTime, Datelike, Utc};
 
 use crate::ingest::{RowOrigin, RowWarning};
+use crate::physics::uncertainty::{Input, Quantity, RowUncertainty};
 use crate::physics::{
     Effect, Fluxes, Observation, ObservationResult, Settings, SpectralValue, Surface,
 };
@@ -68,6 +69,8 @@ enum Source {
     Effect(bool, fn(&Effect) -> f64),
     /// A flux of the clean (`false`) or aerosol (`true`) column, instantaneous or daily.
     Flux(bool, bool, fn(&Fluxes) -> f64),
+    /// A value of the row's propagated uncertainty (`fn(uncertainty, index)`).
+    Uncertainty(fn(&RowUncertainty, usize) -> f64, usize),
     /// A two-stream error ([`crate::physics::SolverError`]).
     Error(fn(&Row) -> f64),
 }
@@ -110,6 +113,10 @@ impl ColumnDef {
                 };
                 Value::Num(f(if aerosol { &e.aerosol } else { &e.clean }))
             }
+            Source::Uncertainty(f, i) => match &row.res.uncertainty {
+                Some(u) => Value::Num(f(u, i)),
+                None => Value::Empty,
+            },
             Source::Error(f) => Value::Num(f(row)),
         }
     }
@@ -132,6 +139,7 @@ pub const COLUMN_GROUPS: &[&str] = &[
     "instantaneous",
     "daily",
     "fluxes",
+    "uncertainty",
     "solver_error",
     "status",
 ];
@@ -292,6 +300,109 @@ fn flux_columns(daily: bool) -> Vec<ColumnDef> {
         }
     }
     out
+}
+
+/// ΔF / (AOD(550) · incident TOA flux), both 24-hour means [per unit AOD, as a fraction of
+/// the incident flux]: a forcing efficiency with the day's insolation divided out, so that it
+/// can be compared between seasons and latitudes (common practice).
+fn normalised_efficiency_columns() -> Vec<ColumnDef> {
+    fn norm(dre: f64, r: &Row) -> Value<'static> {
+        let incident = r.res.daily.clean.toa_down;
+        let aod = r.res.aod_550;
+        if incident > 0.0 && aod > 0.0 {
+            Value::Num(dre / (incident * aod))
+        } else {
+            Value::Empty
+        }
+    }
+    [
+        (
+            "norm_efficiency_toa_24h",
+            "Normalised efficiency TOA (24-h mean)",
+            Source::Get(|r| norm(r.res.daily.dre_toa, r)),
+        ),
+        (
+            "norm_efficiency_sfc_24h",
+            "Normalised efficiency SFC (24-h mean)",
+            Source::Get(|r| norm(r.res.daily.dre_sfc, r)),
+        ),
+    ]
+    .into_iter()
+    .map(|(key, header, source)| ColumnDef {
+        daily: true,
+        ..col(
+            key,
+            header,
+            "per AOD, fraction of incident TOA flux",
+            Class::Fraction,
+            "daily",
+            source,
+        )
+    })
+    .collect()
+}
+
+/// Uncertainty columns (group `uncertainty`): the total 1σ of each propagated quantity
+/// (`<key>_unc`) and the sensitivities of the 24-hour TOA and SFC DRE to each input, per the
+/// step researchers quote (`sens_toa_24h_<input>`, `sens_sfc_24h_<input>`). Shown only when
+/// uncertainties were propagated (see [`drop_empty_uncertainty`]).
+fn uncertainty_columns(existing: &[ColumnDef]) -> Vec<ColumnDef> {
+    let mut out = Vec::new();
+    for (k, q) in Quantity::ALL.into_iter().enumerate() {
+        let Some(base) = existing.iter().find(|c| c.key == q.key()) else {
+            continue;
+        };
+        let daily = base.daily;
+        out.push(ColumnDef {
+            daily,
+            sunlit: base.sunlit,
+            ..col(
+                &format!("{}_unc", q.key()),
+                &format!("σ {}", base.header),
+                base.unit,
+                base.class,
+                "uncertainty",
+                Source::Uncertainty(|u, k| u.random[k].hypot(u.systematic[k]), k),
+            )
+        });
+    }
+    for (level, label, f) in [
+        (
+            "toa",
+            "ΔF_TOA (24-h)",
+            (|u: &RowUncertainty, i: usize| u.sensitivity_toa_24h[i] * Input::ALL[i].quote_step().0)
+                as fn(&RowUncertainty, usize) -> f64,
+        ),
+        (
+            "sfc",
+            "ΔF_SFC (24-h)",
+            (|u: &RowUncertainty, i: usize| u.sensitivity_sfc_24h[i] * Input::ALL[i].quote_step().0)
+                as fn(&RowUncertainty, usize) -> f64,
+        ),
+    ] {
+        for (i, input) in Input::ALL.into_iter().enumerate() {
+            out.push(ColumnDef {
+                daily: true,
+                ..col(
+                    &format!("sens_{level}_24h_{}", input.key()),
+                    &format!("Sensitivity of {label} to {}", input.label()),
+                    input.quote_step().1,
+                    Class::Dre,
+                    "uncertainty",
+                    Source::Uncertainty(f, i),
+                )
+            });
+        }
+    }
+    out
+}
+
+/// Drop the uncertainty columns that hold no finite value in `rows` (no uncertainty
+/// propagated, or an input not declared).
+pub fn drop_empty_uncertainty<'c>(cols: Vec<&'c ColumnDef>, rows: &[Row]) -> Vec<&'c ColumnDef> {
+    cols.into_iter()
+        .filter(|c| c.group != "uncertainty" || rows.iter().any(|r| c.number(r).is_finite()))
+        .collect()
 }
 
 /// The two-stream's error of each DRE (two-stream minus discrete ordinates), computed only
@@ -571,8 +682,11 @@ static COLUMNS: LazyLock<Vec<ColumnDef>> = LazyLock::new(|| {
     ];
     v.extend(effect_columns(false));
     v.extend(effect_columns(true));
+    v.extend(normalised_efficiency_columns());
     v.extend(flux_columns(false));
     v.extend(flux_columns(true));
+    let unc = uncertainty_columns(&v);
+    v.extend(unc);
     v.extend(solver_error_columns());
     v.push(col(
         "flags",
@@ -674,6 +788,9 @@ pub fn group_value<'a>(key: &str, row: &Row<'a>) -> Value<'a> {
         "month" => Value::Num(f64::from(t.month())),
         "season" => Value::Text(Cow::Borrowed(season(t.month()))),
         "date" => Value::Text(Cow::Owned(t.format("%Y-%m-%d").to_string())),
+        "day" => Value::Text(Cow::Owned(
+            super::days::solar_date(row).format("%Y-%m-%d").to_string(),
+        )),
         "file" => Value::Text(Cow::Borrowed(row.origin.file.as_str())),
         _ => Value::Empty,
     }
@@ -687,6 +804,7 @@ pub fn group_header(key: &str) -> (&'static str, &'static str) {
         "month" => ("Month", "UTC, 1–12"),
         "season" => ("Season", "UTC months"),
         "date" => ("Date", "UTC"),
+        "day" => ("Day", "local mean solar date"),
         "file" => ("File", ""),
         _ => ("", ""),
     }

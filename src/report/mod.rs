@@ -40,7 +40,10 @@ use crate::physics::{ObservationResult, Settings};
 
 pub mod about;
 pub mod charts;
+pub mod charts_daily;
+pub mod days;
 pub mod frame;
+pub mod quotable;
 pub mod side;
 pub mod stats;
 pub mod template;
@@ -391,7 +394,7 @@ fn build_workbook(
                     name: template.name.clone(),
                     message: format!("sheet \"{}\": unknown column", spec.name),
                 })?;
-                let cols = frame::available(cols, settings);
+                let cols = frame::drop_empty_uncertainty(frame::available(cols, settings), rows);
                 xlsx::write_results(
                     &mut wb,
                     template,
@@ -473,6 +476,9 @@ fn build_workbook(
                     settings.daily_mean,
                 )
                 .map_err(xerr)?;
+            }
+            SheetKind::Quotable => {
+                quotable::write_quotable(&mut wb, template, spec, &styles, input, rows)?;
             }
             SheetKind::Rejected => {
                 xlsx::write_rejected(

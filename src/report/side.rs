@@ -252,7 +252,10 @@ pub fn csv_safe_text(s: &str) -> Cow<'_, str> {
 
 fn table_frame(input: &ReportInput, csv: bool) -> Result<DataFrame, ReportError> {
     let rows = build_rows(input)?;
-    let cols = frame::available(frame::columns().iter().collect(), input.settings);
+    let cols = frame::drop_empty_uncertainty(
+        frame::available(frame::columns().iter().collect(), input.settings),
+        &rows,
+    );
     let polars_err = |e: PolarsError| ReportError::Input {
         message: format!("building the results table: {e}"),
     };
@@ -335,6 +338,10 @@ pub fn udunits(c: &ColumnDef) -> Option<&'static str> {
         "DU" => "DU",
         "cm" => "cm",
         "h" => "h",
+        // Normalised efficiency: ΔF / (AOD · incident flux), a pure number per unit AOD.
+        "per AOD, fraction of incident TOA flux" => "1",
+        // Sensitivities to a stated input step (the step is in the column's long name).
+        u if u.starts_with("W m⁻² per ") => "W m-2",
         _ => return None,
     })
 }
@@ -390,13 +397,15 @@ fn long_name(c: &ColumnDef) -> String {
 
 /// Flag names of the `flags` variable in mask order (the names of the csv/parquet `flags`
 /// column, [`Flags::names`]).
-pub const FLAG_MEANINGS: [&str; 6] = [
+pub const FLAG_MEANINGS: [&str; 8] = [
     "sun-below-horizon",
     "low-sun",
     "ssa-extrapolated",
     "g-extrapolated",
     "polar-night",
     "polar-day",
+    "ssa-one-wavelength",
+    "g-one-wavelength",
 ];
 
 /// The flags of one result as bits 1, 2, 4, … in the order of [`FLAG_MEANINGS`].
@@ -408,6 +417,8 @@ pub fn flag_bits(f: &Flags) -> i16 {
         f.asymmetry_extrapolated,
         f.polar_night,
         f.polar_day,
+        f.ssa_one_wavelength,
+        f.asymmetry_one_wavelength,
     ]
     .iter()
     .enumerate()
@@ -802,7 +813,10 @@ pub fn netcdf_results(input: &ReportInput, meta: &SideMeta) -> Result<Vec<u8>, R
     )?;
     b.text("wavelength_550", "units", "nm")?;
 
-    let cols = frame::available(frame::columns().iter().collect(), input.settings);
+    let cols = frame::drop_empty_uncertainty(
+        frame::available(frame::columns().iter().collect(), input.settings),
+        &rows,
+    );
     for c in cols {
         let key = c.key.as_str();
         match key {
@@ -814,10 +828,18 @@ pub fn netcdf_results(input: &ReportInput, meta: &SideMeta) -> Result<Vec<u8>, R
                     Data::I16(rows.iter().map(|r| flag_bits(&r.res.flags)).collect()),
                 ));
                 b.text("flags", "long_name", "computation flags")?;
-                b.ds.add_var_attr_i16("flags", "flag_masks", (0..6).map(|i| 1i16 << i).collect())
-                    .map_err(nc_err)?;
-                b.ds.add_var_attr_i16("flags", "valid_range", vec![0, 63])
-                    .map_err(nc_err)?;
+                b.ds.add_var_attr_i16(
+                    "flags",
+                    "flag_masks",
+                    (0..FLAG_MEANINGS.len()).map(|i| 1i16 << i).collect(),
+                )
+                .map_err(nc_err)?;
+                b.ds.add_var_attr_i16(
+                    "flags",
+                    "valid_range",
+                    vec![0, (1i16 << FLAG_MEANINGS.len()) - 1],
+                )
+                .map_err(nc_err)?;
                 b.text("flags", "flag_meanings", &FLAG_MEANINGS.join(" "))?;
                 b.text("flags", "coordinates", &obs_coordinates(key))?;
                 continue;
@@ -1064,4 +1086,32 @@ pub fn command_line() -> String {
         })
         .collect::<Vec<_>>()
         .join(" ")
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// Every flag a result can carry has its mask and meaning, in the order of the text names,
+    /// so that the NetCDF `flags` decode to the csv/parquet `flags` text.
+    #[test]
+    fn every_flag_has_a_mask_and_meaning() {
+        let all = Flags {
+            sun_below_horizon: true,
+            low_sun: true,
+            ssa_extrapolated: true,
+            asymmetry_extrapolated: true,
+            polar_night: true,
+            polar_day: true,
+            ssa_one_wavelength: true,
+            asymmetry_one_wavelength: true,
+        };
+        assert_eq!(all.names(), FLAG_MEANINGS.to_vec());
+        assert_eq!(flag_bits(&all), (1i16 << FLAG_MEANINGS.len()) - 1);
+        let one = Flags {
+            asymmetry_one_wavelength: true,
+            ..Flags::default()
+        };
+        assert_eq!(flag_bits(&one), 1 << 7);
+    }
 }

@@ -24,6 +24,16 @@ pub struct Summary {
     pub p95: Option<f64>,
     pub min: Option<f64>,
     pub max: Option<f64>,
+    /// Site-days behind the statistic (see [`super::days`]); 0 when not counted by day.
+    pub days: usize,
+    /// Observations behind the statistic.
+    pub observations: usize,
+    /// Propagated random input uncertainty of the mean, 1σ (averages down over days).
+    pub u_random: Option<f64>,
+    /// Propagated systematic input uncertainty of the mean, 1σ (does not average down).
+    pub u_systematic: Option<f64>,
+    /// Combined standard uncertainty of the mean, √(SE² + u_random² + u_systematic²).
+    pub u_total: Option<f64>,
 }
 
 impl Summary {
@@ -43,6 +53,11 @@ impl Summary {
             "p95" => self.p95,
             "min" => self.min,
             "max" => self.max,
+            "days" => Some(self.days as f64),
+            "observations" => Some(self.observations as f64),
+            "u_random" => self.u_random,
+            "u_systematic" => self.u_systematic,
+            "u_total" => self.u_total,
             _ => None,
         }
     }
@@ -64,6 +79,11 @@ pub fn statistic_header(name: &str) -> &'static str {
         "p95" => "P95",
         "min" => "Min",
         "max" => "Max",
+        "days" => "Days",
+        "observations" => "Observations",
+        "u_random" => "Input unc. random (1σ)",
+        "u_systematic" => "Input unc. systematic (1σ)",
+        "u_total" => "Total unc. (1σ)",
         _ => "",
     }
 }
@@ -140,6 +160,8 @@ pub fn summarise(values: impl IntoIterator<Item = f64>) -> Summary {
         p95: pct(0.95),
         min: v.first().copied(),
         max: v.last().copied(),
+        observations: n,
+        ..Summary::default()
     }
 }
 

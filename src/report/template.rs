@@ -15,7 +15,7 @@
 //!
 //! [[sheet]]
 //! name = "Results"
-//! kind = "results"     # about | results | summary | efficiency | charts | rejected
+//! kind = "results"     # about | results | summary | efficiency | charts | rejected | quotable
 //! columns = ["identity", "dre_toa_24h"]
 //! ```
 //!
@@ -68,9 +68,21 @@ pub struct Template {
     /// Column width limits.
     #[serde(default)]
     pub widths: Widths,
+    /// Observations a site-day needs to count in the statistics (default 1); a job's
+    /// `[report] min_observations_per_day` overrides it.
+    #[serde(default = "one")]
+    pub min_observations_per_day: usize,
+    /// Propagate input uncertainties even when the job declares none (built-in typical
+    /// values then apply); default false.
+    #[serde(default)]
+    pub propagate_uncertainty: bool,
     /// Sheets in workbook order.
     #[serde(rename = "sheet", default)]
     pub sheets: Vec<SheetSpec>,
+}
+
+fn one() -> usize {
+    1
 }
 
 /// Excel number formats per kind of quantity.
@@ -158,6 +170,9 @@ pub enum SheetKind {
     Charts,
     /// Every row not computed, with the reason.
     Rejected,
+    /// Per site and season, and over the period: the 24-hour DRE, efficiency and AOD(550)
+    /// as "mean ± uncertainty (n days)", and a generated methods paragraph.
+    Quotable,
 }
 
 /// A chart of a `charts` sheet.
@@ -168,6 +183,11 @@ pub enum ChartKind {
     MonthlyDre,
     /// ΔF against AOD(550) with the fitted line per site, TOA and surface (two scatter charts).
     DreVsAod,
+    /// Daily (site-day) 24-hour TOA and surface DRE per site with the propagated 1σ as error
+    /// bars (two charts).
+    DailyDre,
+    /// Daily 24-hour TOA against surface DRE per site (the ratio tells absorption).
+    ToaVsSurface,
 }
 
 /// One sheet of a template.
@@ -180,13 +200,15 @@ pub struct SheetSpec {
     /// `results`: column keys or groups (`all`, `identity`, `inputs`, `geometry`,
     /// `fluxes`, `instantaneous`, `daily`, `status`); default `all`.
     pub columns: Option<Vec<String>>,
-    /// `summary`: group keys (`site`, `year`, `month`, `season`, `date`, `file`); empty for
-    /// one overall group.
+    /// `summary`: group keys (`site`, `year`, `month`, `season`, `date` (UTC), `day` (local
+    /// mean-solar date, the day of the 24-hour mean), `file`); empty for one overall group.
     pub group_by: Option<Vec<String>>,
     /// `summary`: numeric result columns to summarise.
     pub quantities: Option<Vec<String>>,
     /// `summary`: statistics (`all` or any of `count`, `mean`, `sd`, `se`, `ci95_low`,
-    /// `ci95_high`, `median`, `p5`, `p25`, `p75`, `p95`, `min`, `max`).
+    /// `ci95_high`, `median`, `p5`, `p25`, `p75`, `p95`, `min`, `max`, `days`,
+    /// `observations`, `u_random`, `u_systematic`, `u_total`). `count` is the number of
+    /// statistical units: site-days for 24-hour quantities, observations otherwise.
     pub statistics: Option<Vec<String>>,
     /// `efficiency`: group-key lists, one block of regressions each; default `[["site"]]`.
     pub groupings: Option<Vec<Vec<String>>>,
@@ -197,7 +219,7 @@ pub struct SheetSpec {
 }
 
 /// Group keys a summary or efficiency sheet may use.
-pub const GROUP_KEYS: &[&str] = &["site", "year", "month", "season", "date", "file"];
+pub const GROUP_KEYS: &[&str] = &["site", "year", "month", "season", "date", "day", "file"];
 
 /// Statistics a summary sheet may show, in display order.
 pub const STATISTICS: &[&str] = &[
@@ -214,6 +236,11 @@ pub const STATISTICS: &[&str] = &[
     "p95",
     "min",
     "max",
+    "days",
+    "observations",
+    "u_random",
+    "u_systematic",
+    "u_total",
 ];
 
 /// Load a built-in template by name, or a template file by path.
@@ -298,6 +325,11 @@ impl Template {
     fn check(&self) -> Result<(), String> {
         if self.sheets.is_empty() {
             return Err("the template names no sheets; add at least one [[sheet]] table".into());
+        }
+        if self.min_observations_per_day == 0 {
+            return Err(
+                "min_observations_per_day: expected a whole number of at least 1, found 0".into(),
+            );
         }
         if !(self.widths.min > 0.0
             && self.widths.max >= self.widths.min

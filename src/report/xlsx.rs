@@ -441,6 +441,25 @@ fn put_value(
     Ok(())
 }
 
+/// Statistics that are counts (days, observations, statistical units).
+fn is_count_statistic(name: &str) -> bool {
+    matches!(name, "count" | "days" | "observations")
+}
+
+/// Statistics that are spreads or uncertainties (no colour scale).
+fn is_spread_statistic(name: &str) -> bool {
+    matches!(name, "sd" | "se" | "u_random" | "u_systematic" | "u_total")
+}
+
+/// Unit row entry of a statistic's column.
+fn statistic_unit(name: &str) -> &'static str {
+    match name {
+        "count" => "days (24-h) or obs.",
+        "days" | "observations" => "count",
+        _ => "per row, see Unit",
+    }
+}
+
 /// A grouped summary sheet: for each quantity and group, the statistics of the template.
 #[allow(clippy::too_many_arguments)]
 pub fn write_summary(
@@ -453,21 +472,18 @@ pub fn write_summary(
     keys: &[String],
     quantities: &[&ColumnDef],
 ) -> Result<(), XlsxError> {
-    let stats_list = spec.statistics_list();
+    let mut stats_list = spec.statistics_list();
+    // Uncertainty statistics only when uncertainties were propagated.
+    if !rows.iter().any(|r| r.res.uncertainty.is_some()) {
+        stats_list.retain(|s| !s.starts_with("u_"));
+    }
     let ws = wb.add_worksheet();
     ws.set_name(&spec.name)?;
     let mut headers: Vec<(&str, &str)> = keys.iter().map(|k| frame::group_header(k)).collect();
     headers.push(("Quantity", ""));
     headers.push(("Unit", ""));
     for s in &stats_list {
-        headers.push((
-            stats::statistic_header(s),
-            if *s == "count" {
-                "count"
-            } else {
-                "per row, see Unit"
-            },
-        ));
+        headers.push((stats::statistic_header(s), statistic_unit(s)));
     }
     let mut widths = Widths::default();
     put_header(ws, styles, &headers, &mut widths)?;
@@ -486,18 +502,18 @@ pub fn write_summary(
             widths.see_text(keys.len(), &q.header);
             ws.write_string(r, keys.len() as u16 + 1, q.unit)?;
             widths.see_text(keys.len() + 1, q.unit);
-            let s = stats::summarise(g.rows.iter().map(|&i| stat_value(q, &rows[i])));
+            let s = super::days::summarise_group(q, rows, &g.rows, t.min_observations_per_day);
             for (k, name) in stats_list.iter().enumerate() {
                 let c = (first_stat + k) as u16;
                 let v = s.get(name).filter(|x| x.is_finite());
-                if *name == "count" {
+                if is_count_statistic(name) {
                     put_opt(ws, r, c, v, styles.class(Class::Count))?;
                     widths.see(c as usize, number_width(v.unwrap_or(0.0), 0));
                 } else {
                     put_opt(ws, r, c, v, f)?;
                     if let Some(x) = v {
                         widths.see(c as usize, number_width(x, d));
-                        if !matches!(*name, "sd" | "se") {
+                        if !is_spread_statistic(name) {
                             max_abs = max_abs.max(x.abs());
                         }
                     }
@@ -507,7 +523,7 @@ pub fn write_summary(
         }
         if q.class == Class::Dre && r > block_start {
             for (k, name) in stats_list.iter().enumerate() {
-                if !matches!(*name, "count" | "sd" | "se") {
+                if !is_count_statistic(name) && !is_spread_statistic(name) {
                     let c = (first_stat + k) as u16;
                     ws.add_conditional_format(block_start, c, r - 1, c, &dre_scale(max_abs))?;
                 }
@@ -534,12 +550,70 @@ pub fn efficiency_quantities(daily_mean: bool) -> Vec<&'static ColumnDef> {
     keys.iter().filter_map(|k| frame::column(k)).collect()
 }
 
-/// Fit ΔF against AOD(550) over the given rows.
+/// Fit ΔF against AOD(550) over the given rows: over site-days for a 24-hour quantity (the
+/// day means of AOD(550) and ΔF, days being the independent units), over observations
+/// otherwise.
 pub fn fit_rows(q: &ColumnDef, rows: &[Row], idx: &[usize]) -> stats::Fit {
+    stats::ols(fit_points(q, rows, idx))
+}
+
+/// The (AOD(550), ΔF) points of [`fit_rows`].
+pub fn fit_points(q: &ColumnDef, rows: &[Row], idx: &[usize]) -> Vec<(f64, f64)> {
     let aod = frame::column("aod_550").expect("aod_550 column exists");
-    stats::ols(
-        idx.iter()
-            .map(|&i| (aod.number(&rows[i]), stat_value(q, &rows[i]))),
+    if !q.daily {
+        return idx
+            .iter()
+            .map(|&i| (aod.number(&rows[i]), stat_value(q, &rows[i])))
+            .collect();
+    }
+    let pairs = super::days::DayValues::gather(rows, idx, |r| {
+        let (x, y) = (aod.number(r), stat_value(q, r));
+        if x.is_finite() { y } else { f64::NAN }
+    });
+    pairs
+        .counted(1)
+        .map(|(_, _, v)| {
+            let n = v.len() as f64;
+            let x = v.iter().map(|&(_, i)| aod.number(&rows[i])).sum::<f64>() / n;
+            let y = v.iter().map(|p| p.0).sum::<f64>() / n;
+            (x, y)
+        })
+        .collect()
+}
+
+/// Mean incident TOA flux of the rows [W m⁻²] (24-hour or instantaneous, sun up).
+fn mean_incident(daily: bool, rows: &[Row], idx: &[usize]) -> f64 {
+    let v: Vec<f64> = idx
+        .iter()
+        .map(|&i| &rows[i])
+        .filter(|r| daily || !r.res.flags.sun_below_horizon)
+        .map(|r| {
+            if daily {
+                r.res.daily.clean.toa_down
+            } else {
+                r.res.instantaneous.clean.toa_down
+            }
+        })
+        .filter(|x| x.is_finite())
+        .collect();
+    if v.is_empty() {
+        f64::NAN
+    } else {
+        v.iter().sum::<f64>() / v.len() as f64
+    }
+}
+
+/// The note of a fit whose rows span several seasons (insolation differs, so the slope mixes
+/// seasonal insolation with AOD and is not one relation), or `None`.
+pub fn pooled_note(rows: &[Row], idx: &[usize]) -> Option<&'static str> {
+    let mut seasons: Vec<&str> = idx
+        .iter()
+        .map(|&i| frame::season(chrono::Datelike::month(&rows[i].obs.time_utc)))
+        .collect();
+    seasons.sort_unstable();
+    seasons.dedup();
+    (seasons.len() > 1).then_some(
+        "pooled over seasons: insolation differs, so this slope mixes season with AOD; quote the per-season fits or the normalised slope",
     )
 }
 
@@ -582,6 +656,10 @@ pub fn write_efficiency(
         ("Slope through origin SE", per_aod),
         ("AOD(550) min", "unitless"),
         ("AOD(550) max", "unitless"),
+        ("Normalised slope", "per AOD, fraction of incident TOA flux"),
+        ("Mean incident TOA flux", "W m⁻²"),
+        ("Points", "site-days (24-h) or obs."),
+        ("Note", ""),
     ]);
     let mut widths = Widths::default();
     put_header(ws, styles, &headers, &mut widths)?;
@@ -621,6 +699,21 @@ pub fn write_efficiency(
                     if let Some(x) = v {
                         widths.see(c as usize, number_width(*x, d_eff.max(3)));
                     }
+                }
+                let incident = mean_incident(q.daily, rows, &g.rows);
+                let c = c0 + 2 + vals.len() as u16;
+                put_opt(
+                    ws,
+                    r,
+                    c,
+                    fit.slope.map(|b| b / incident),
+                    styles.class(Class::Fraction),
+                )?;
+                put_number(ws, r, c + 1, incident, styles.class(Class::Flux))?;
+                ws.write_string(r, c + 2, if q.daily { "site-days" } else { "observations" })?;
+                if let Some(note) = pooled_note(rows, &g.rows) {
+                    ws.write_string(r, c + 3, note)?;
+                    widths.see(c as usize + 3, 40);
                 }
                 r += 1;
             }

@@ -139,6 +139,7 @@ pub fn sample(n: usize) -> (Ingested, Vec<ObservationResult>) {
                 ssa_extrapolated: true,
                 ..Flags::default()
             },
+            uncertainty: None,
             solver_error: Default::default(),
         };
         ing.sites.push(site.to_string());
