@@ -58,19 +58,6 @@ impl SiteMetadata {
 /// The quantity a label names, for site metadata: header detection first, then the same text
 /// without a parenthesised qualifier or trailing colon, then the labels of [`EXTRA_LABELS`].
 pub(crate) fn label_kind(label: &str) -> Option<(Kind, String)> {
-    let site_kind = |k: Kind| {
-        matches!(
-            k,
-            Kind::Site
-                | Kind::Latitude
-                | Kind::Longitude
-                | Kind::Altitude
-                | Kind::Pressure
-                | Kind::Albedo
-                | Kind::Surface
-                | Kind::UtcOffset
-        )
-    };
     let plain: String = {
         let mut depth = 0;
         label
@@ -96,7 +83,7 @@ pub(crate) fn label_kind(label: &str) -> Option<(Kind, String)> {
             } else {
                 h.kind
             };
-            if site_kind(kind) {
+            if super::read::is_site_property(kind) {
                 return Some((kind, h.unit));
             }
         }

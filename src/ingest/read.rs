@@ -501,7 +501,7 @@ pub(crate) struct SiteSheet {
 }
 
 /// Quantities a site sheet gives per site.
-fn is_site_property(kind: Kind) -> bool {
+pub(crate) fn is_site_property(kind: Kind) -> bool {
     matches!(
         kind,
         Kind::Site

@@ -432,6 +432,33 @@ pub fn solve_modes(
     solve_modes_surface(&refs, quad, mu0, albedo, albedo)
 }
 
+/// The column fluxes that need no solve: all NaN when a layer's optics are not usable; zero
+/// with the sun down (μ0 ≤ 0 or NaN); the bare surface when there is no layer. `None`
+/// otherwise. Shared by the general and the fixed-size paths.
+pub(super) fn edge_case(
+    layers_valid: bool,
+    no_layers: bool,
+    mu0: f64,
+    albedo_beam: f64,
+) -> Option<ColumnFluxes> {
+    if !layers_valid {
+        return Some(ColumnFluxes {
+            toa_up: f64::NAN,
+            sfc_down_direct: f64::NAN,
+            sfc_down_diffuse: f64::NAN,
+            sfc_up: f64::NAN,
+            layer_absorption: [f64::NAN; MAX_LAYERS],
+        });
+    }
+    let lit = !(mu0.is_nan() || mu0 <= 0.0);
+    (!lit || no_layers).then(|| ColumnFluxes {
+        toa_up: if lit { albedo_beam } else { 0.0 },
+        sfc_down_direct: if lit { 1.0 } else { 0.0 },
+        sfc_up: if lit { albedo_beam } else { 0.0 },
+        ..ColumnFluxes::default()
+    })
+}
+
 /// [`solve_modes`] over a surface that reflects isotropically with one albedo for the beam
 /// and another for diffuse light (the surface of [`super::column::add_layers`]):
 /// I⁺ = (1/π)(A_beam μ0 F0 e^(−τ′/μ0) + A_diffuse 2π Σ w_j μ_j I⁻_j).
@@ -444,23 +471,13 @@ pub fn solve_modes_surface(
     albedo_beam: f64,
     albedo_diffuse: f64,
 ) -> ColumnFluxes {
-    if layers.iter().any(|l| !l.valid) {
-        return ColumnFluxes {
-            toa_up: f64::NAN,
-            sfc_down_direct: f64::NAN,
-            sfc_down_diffuse: f64::NAN,
-            sfc_up: f64::NAN,
-            layer_absorption: [f64::NAN; MAX_LAYERS],
-        };
-    }
-    if mu0.is_nan() || mu0 <= 0.0 || layers.is_empty() {
-        let lit = !(mu0.is_nan() || mu0 <= 0.0);
-        return ColumnFluxes {
-            toa_up: if lit { albedo_beam } else { 0.0 },
-            sfc_down_direct: if lit { 1.0 } else { 0.0 },
-            sfc_up: if lit { albedo_beam } else { 0.0 },
-            ..ColumnFluxes::default()
-        };
+    if let Some(f) = edge_case(
+        layers.iter().all(|l| l.valid),
+        layers.is_empty(),
+        mu0,
+        albedo_beam,
+    ) {
+        return f;
     }
     let mu0 = mu0.min(1.0);
     // Resonance k μ0 = 1 in any layer: interpolate between the two sides.

@@ -521,23 +521,13 @@ pub fn solve_fixed<const H: usize, const F: usize>(
     albedo_diffuse: f64,
     work: &mut FixedWork,
 ) -> ColumnFluxes {
-    if layers.iter().any(|l| !l.valid) {
-        return ColumnFluxes {
-            toa_up: f64::NAN,
-            sfc_down_direct: f64::NAN,
-            sfc_down_diffuse: f64::NAN,
-            sfc_up: f64::NAN,
-            layer_absorption: [f64::NAN; MAX_LAYERS],
-        };
-    }
-    if mu0.is_nan() || mu0 <= 0.0 || layers.is_empty() {
-        let lit = !(mu0.is_nan() || mu0 <= 0.0);
-        return ColumnFluxes {
-            toa_up: if lit { albedo_beam } else { 0.0 },
-            sfc_down_direct: if lit { 1.0 } else { 0.0 },
-            sfc_up: if lit { albedo_beam } else { 0.0 },
-            ..ColumnFluxes::default()
-        };
+    if let Some(f) = super::discrete_ordinates::edge_case(
+        layers.iter().all(|l| l.valid),
+        layers.is_empty(),
+        mu0,
+        albedo_beam,
+    ) {
+        return f;
     }
     factor(layers, quad, albedo_diffuse, work);
     let mu0 = mu0.min(1.0);

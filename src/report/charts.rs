@@ -338,7 +338,7 @@ pub(super) fn series_label(s: &str) -> String {
     }
 }
 
-fn put_head(
+pub(super) fn put_head(
     ws: &mut rust_xlsxwriter::Worksheet,
     styles: &Styles,
     widths: &mut Widths,

@@ -56,21 +56,6 @@ pub fn day_points(rows: &[Row], key: &str) -> BTreeMap<String, BTreeMap<NaiveDat
     out
 }
 
-fn head(
-    ws: &mut Worksheet,
-    styles: &Styles,
-    widths: &mut Widths,
-    c: u16,
-    h: &str,
-    u: &str,
-) -> Result<(), XlsxError> {
-    ws.write_string_with_format(0, c, h, &styles.header)?;
-    ws.write_string_with_format(1, c, u, &styles.unit)?;
-    widths.see_text(c as usize, h);
-    widths.see_text(c as usize, u);
-    Ok(())
-}
-
 fn marker(color: rust_xlsxwriter::Color, size: u8) -> ChartMarker {
     let mut m = ChartMarker::new();
     m.set_type(ChartMarkerType::Circle)
@@ -113,7 +98,7 @@ pub fn daily_charts(
         .values()
         .flat_map(|m| m.values())
         .any(|p| p.sigma.is_finite());
-    head(ws, styles, widths, col, "Day", "local mean solar date")?;
+    super::charts::put_head(ws, styles, widths, col, "Day", "local mean solar date")?;
     for (k, d) in dates.iter().enumerate() {
         let t = d.format("%Y-%m-%d").to_string();
         ws.write_string(2 + k as u32, col, &t)?;
@@ -131,7 +116,7 @@ pub fn daily_charts(
             format!("{s}: σ ΔF_SFC (24-h)"),
         ];
         for (k, h) in heads.iter().enumerate() {
-            head(ws, styles, widths, c + k as u16, h, "W m⁻²")?;
+            super::charts::put_head(ws, styles, widths, c + k as u16, h, "W m⁻²")?;
         }
         for (k, d) in dates.iter().enumerate() {
             let r = 2 + k as u32;
