@@ -322,8 +322,8 @@ mod driver {
     use chrono::{TimeZone, Utc};
     use hazebook::physics::forcing::{Context, compute_observation};
     use hazebook::physics::{
-        AerosolLayer, BandSet, Method, Observation, ObservationResult, Settings, SpectralValue,
-        Surface,
+        AerosolLayer, BandSet, DEFAULT_STREAMS, Method, Observation, ObservationResult, Settings,
+        SpectralValue, Surface,
     };
 
     const TAUS: [f64; 6] = [0.02, 0.1, 0.3, 0.7, 1.2, 2.0];
@@ -424,11 +424,13 @@ mod driver {
     /// |---|---|---|
     /// | delta-Eddington | 5.6 % / 38.6 % | 3.1 % / 16.6 % |
     /// | 4 streams | 1.14 % / 6.4 % | 0.90 % / 5.1 % |
+    /// | 6 streams | 0.13 % / 1.24 % | 0.16 % / 2.0 % |
+    /// | 8 streams | 0.03 % / 0.46 % | 0.04 % / 0.69 % |
     ///
-    /// (6 and 8 streams are printed with `--nocapture`.) The goal of median ≤ 1 % and
-    /// P95 ≤ 3 % is not met at 4 streams; the errors fall with N (asserted). The bounds for 4
-    /// streams sit above the measured values with a margin; the delta-Eddington row shows the
-    /// check can fail.
+    /// The goal of the accurate option, median ≤ 1 % and P95 ≤ 3 % at TOA and at the surface,
+    /// is asserted for the default number of streams ([`DEFAULT_STREAMS`], 6: the fewest that
+    /// meet it); 4 streams miss it (asserted, so the choice of default stays justified), and the
+    /// errors fall with N (asserted). The delta-Eddington row shows the check can fail.
     #[test]
     fn accuracy_frontier_24h() {
         let reference = run_all(&settings(Method::DiscreteOrdinates, 32, None));
@@ -442,10 +444,15 @@ mod driver {
                 &reference,
             );
             println!("{n} streams: TOA {:?}, SFC {:?}", e[0], e[1]);
-            if n == 4 {
-                for (median, p95) in e {
-                    assert!(median <= 0.015 && p95 <= 0.08, "{n} streams: {e:?}");
-                }
+            let meets = e.iter().all(|&(median, p95)| median <= 0.01 && p95 <= 0.03);
+            if n == DEFAULT_STREAMS {
+                assert!(meets, "the default {n} streams miss the goal: {e:?}");
+            }
+            if n < DEFAULT_STREAMS {
+                assert!(
+                    !meets,
+                    "{n} streams meet the goal: a cheaper default would do"
+                );
             }
             assert!(e[0].1 < last, "{n} streams: no better than fewer");
             last = e[0].1;
@@ -454,13 +461,15 @@ mod driver {
 
     /// Low sun (instantaneous, μ0 0.05–0.2), absolute ΔF_TOA error as a fraction of the
     /// incident flux against 32 streams, largest over the cases. Measured: delta-Eddington
-    /// 0.143, 4 streams 0.065 (8 streams printed with `--nocapture`).
+    /// 0.143, 4 streams 0.065, 6 streams (the default) 0.032, 8 streams 0.015; the bounds sit
+    /// above them with a margin.
     #[test]
     fn low_sun_errors() {
         for (method, n, bound) in [
             (Method::TwoStream, 4, f64::INFINITY),
             (Method::DiscreteOrdinates, 4, 0.08),
-            (Method::DiscreteOrdinates, 8, 0.065),
+            (Method::DiscreteOrdinates, 6, 0.04),
+            (Method::DiscreteOrdinates, 8, 0.02),
         ] {
             let mut worst: f64 = 0.0;
             for mu0 in [0.05, 0.1, 0.2] {

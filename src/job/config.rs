@@ -189,7 +189,7 @@ impl SolverSection {
         if !(2..=MAX_STREAMS).contains(&self.streams) || !self.streams.is_multiple_of(2) {
             return Err(format!(
                 "[solver] streams = {}: expected an even number of streams from 2 to {MAX_STREAMS} \
-                 (4 is the default; 8 or 16 for reference work)",
+                 (6 is the default; 8 or 16 for reference work)",
                 self.streams
             ));
         }
