@@ -45,6 +45,7 @@ mod metadata;
 mod read;
 mod resolve;
 mod sites;
+mod sigma_headers;
 mod sources;
 mod time;
 mod types;
