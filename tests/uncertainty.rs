@@ -212,7 +212,10 @@ fn row_sigma_overrides_the_declared_value() {
     let s = Settings::default();
     let ctx = Context::new(&s);
     let obs = vec![case(0.9), case(0.9), case(0.9)];
-    let base: Vec<_> = obs.iter().map(|o| compute_observation(o, &s, &ctx)).collect();
+    let base: Vec<_> = obs
+        .iter()
+        .map(|o| compute_observation(o, &s, &ctx))
+        .collect();
     let d = typical();
     let mut small: RowSigma = [None; INPUT_COUNT];
     small[Input::Ssa.index()] = Some(0.01);
@@ -223,7 +226,12 @@ fn row_sigma_overrides_the_declared_value() {
     let natures = [Nature::Random; INPUT_COUNT];
     let u = propagate_batch_rows(&obs, &base, &s, &ctx, &d, &[small, large, none], &natures);
     let q = Quantity::DreToa24h as usize;
-    assert!(u[1].random[q] > u[0].random[q], "{} {}", u[1].random[q], u[0].random[q]);
+    assert!(
+        u[1].random[q] > u[0].random[q],
+        "{} {}",
+        u[1].random[q],
+        u[0].random[q]
+    );
     assert_eq!(u[1].input_sigma[Input::Ssa.index()], 0.05);
     // Row σ = job default with the same σ, bit for bit.
     let mut as_job = d;
@@ -238,6 +246,9 @@ fn row_sigma_overrides_the_declared_value() {
 }
 
 /// Bit-for-bit equality of two propagations (NaN where an input was not declared equals NaN).
-fn same(a: &hazebook::physics::uncertainty::RowUncertainty, b: &hazebook::physics::uncertainty::RowUncertainty) {
+fn same(
+    a: &hazebook::physics::uncertainty::RowUncertainty,
+    b: &hazebook::physics::uncertainty::RowUncertainty,
+) {
     assert_eq!(format!("{a:?}"), format!("{b:?}"));
 }

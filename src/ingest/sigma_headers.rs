@@ -120,14 +120,17 @@ pub(crate) fn is_bare_sigma(text: &str) -> Option<bool> {
 /// order, the σ it holds, its quantity column's position when the sheet has that quantity,
 /// or the reason it is ignored (a σ of a quantity the sheet does not have; a bare marker
 /// with no quantity on its left).
-pub(crate) fn sigma_columns(headers: &[(usize, String)]) -> Vec<(usize, Result<SigmaHeader, String>)> {
+pub(crate) fn sigma_columns(
+    headers: &[(usize, String)],
+) -> Vec<(usize, Result<SigmaHeader, String>)> {
     let quantity = |h: &str| parse_header(h).and_then(|m| input_of(m.kind).map(|i| (i, m)));
     let mut out = Vec::new();
     for (k, (col, h)) in headers.iter().enumerate() {
         if let Some(s) = parse_sigma_header(h) {
             let has = headers.iter().any(|(_, o)| {
                 quantity(o).is_some_and(|(i, m)| {
-                    i == s.input && (s.wavelength_nm.is_none() || m.wavelength_nm == s.wavelength_nm)
+                    i == s.input
+                        && (s.wavelength_nm.is_none() || m.wavelength_nm == s.wavelength_nm)
                 })
             });
             out.push((
@@ -139,7 +142,8 @@ pub(crate) fn sigma_columns(headers: &[(usize, String)]) -> Vec<(usize, Result<S
                         "an uncertainty of {} but the sheet has no {} column{}; not read",
                         s.input.label(),
                         s.input.label(),
-                        s.wavelength_nm.map_or(String::new(), |w| format!(" at {w} nm"))
+                        s.wavelength_nm
+                            .map_or(String::new(), |w| format!(" at {w} nm"))
                     ))
                 },
             ));
@@ -168,6 +172,30 @@ pub(crate) fn sigma_columns(headers: &[(usize, String)]) -> Vec<(usize, Result<S
     out
 }
 
+/// Why header column `c` of grid row `header_row` is not read, when it is a σ column: the
+/// per-row σ it holds is named, or the reason it is ignored ([`sigma_columns`]). `None` for
+/// any other column.
+pub(crate) fn unread_reason(
+    grid: &super::cells::Grid,
+    header_row: usize,
+    c: usize,
+) -> Option<String> {
+    let headers: Vec<(usize, String)> = (0..grid.width())
+        .filter_map(|k| grid.cell(header_row, k).text().map(|t| (k, t.to_string())))
+        .collect();
+    let (_, found) = sigma_columns(&headers).into_iter().find(|(k, _)| *k == c)?;
+    Some(match found {
+        Ok(s) => format!(
+            "a per-row 1σ of {}{}{}; per-row uncertainty columns are not read yet, so the job file's [uncertainty] value (or the built-in one) applies to every row",
+            s.input.label(),
+            s.wavelength_nm
+                .map_or(String::new(), |w| format!(" at {w} nm")),
+            if s.percent { " in percent" } else { "" }
+        ),
+        Err(why) => why,
+    })
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -191,7 +219,12 @@ mod tests {
             ("u(AOD)", Input::Aod, None, false),
             ("AOD error", Input::Aod, None, false),
             ("AOD uncertainty (%)", Input::Aod, None, true),
-            ("Angstrom exponent uncertainty", Input::Angstrom, None, false),
+            (
+                "Angstrom exponent uncertainty",
+                Input::Angstrom,
+                None,
+                false,
+            ),
             ("g_unc", Input::Asymmetry, None, false),
             ("albedo uncertainty", Input::Albedo, None, false),
             ("ozone_err", Input::Ozone, None, false),
@@ -206,7 +239,15 @@ mod tests {
 
     #[test]
     fn quantities_and_other_words_are_not_sigma() {
-        for h in ["SSA", "AOD 500", "ozone", "error flag", "uncertainty", "time", "site unc"] {
+        for h in [
+            "SSA",
+            "AOD 500",
+            "ozone",
+            "error flag",
+            "uncertainty",
+            "time",
+            "site unc",
+        ] {
             assert_eq!(read(h), None, "{h}");
         }
         assert_eq!(is_bare_sigma("uncertainty"), Some(false));
@@ -218,7 +259,10 @@ mod tests {
     #[test]
     fn bare_columns_take_their_left_neighbour_and_orphans_are_ignored() {
         let h = |v: &[&str]| -> Vec<(usize, String)> {
-            v.iter().enumerate().map(|(k, s)| (k, s.to_string())).collect()
+            v.iter()
+                .enumerate()
+                .map(|(k, s)| (k, s.to_string()))
+                .collect()
         };
         let got = sigma_columns(&h(&["time", "AOD 500", "±", "SSA", "unc", "g uncertainty"]));
         assert_eq!(got.len(), 3);

@@ -452,7 +452,11 @@ pub type RowSigma = [Option<f64>; INPUT_COUNT];
 /// The uncertainties that apply to one row: each per-row σ of `row` replaces the declared
 /// entry of its input (absolute σ, no relative part), with the nature `row_nature` gives for
 /// that input (per-row columns are random from day to day unless the job file says otherwise).
-pub fn with_row_sigma(declared: &Declared, row: &RowSigma, row_nature: &[Nature; INPUT_COUNT]) -> Declared {
+pub fn with_row_sigma(
+    declared: &Declared,
+    row: &RowSigma,
+    row_nature: &[Nature; INPUT_COUNT],
+) -> Declared {
     let mut d = *declared;
     for i in Input::ALL {
         if let Some(s) = row[i.index()] {
@@ -483,7 +487,15 @@ pub fn propagate_batch_rows(
     obs.par_iter()
         .zip(base.par_iter())
         .zip(rows.par_iter())
-        .map(|((o, b), r)| propagate(o, settings, ctx, b, &with_row_sigma(declared, r, row_nature)))
+        .map(|((o, b), r)| {
+            propagate(
+                o,
+                settings,
+                ctx,
+                b,
+                &with_row_sigma(declared, r, row_nature),
+            )
+        })
         .collect()
 }
 
