@@ -60,7 +60,10 @@ fn sigma_columns_are_recognised_and_accounted_for() {
             .clone()
     };
     let aod = reason("AOD uncertainty (%)");
-    assert!(aod.contains("1σ of AOD") && aod.contains("percent"), "{aod}");
+    assert!(
+        aod.contains("1σ of AOD") && aod.contains("percent"),
+        "{aod}"
+    );
     let ssa = reason("±");
     assert!(ssa.contains("1σ of SSA at 550 nm"), "{ssa}");
     // A σ of a quantity the sheet does not have: said so.
