@@ -202,3 +202,53 @@ fn fixed_zenith_of_the_base_result_reproduces_it() {
     assert_eq!(again.instantaneous, base.instantaneous);
     assert_eq!(again.daily, base.daily);
 }
+
+/// A per-row σ replaces the declared σ of its input: a row with a larger SSA σ gets a larger
+/// propagated DRE σ, and a row σ gives exactly the propagation of the same σ declared for
+/// the job (random, as per-row columns are by default).
+#[test]
+fn row_sigma_overrides_the_declared_value() {
+    use hazebook::physics::uncertainty::{INPUT_COUNT, RowSigma, propagate_batch_rows};
+    let s = Settings::default();
+    let ctx = Context::new(&s);
+    let obs = vec![case(0.9), case(0.9), case(0.9)];
+    let base: Vec<_> = obs
+        .iter()
+        .map(|o| compute_observation(o, &s, &ctx))
+        .collect();
+    let d = typical();
+    let mut small: RowSigma = [None; INPUT_COUNT];
+    small[Input::Ssa.index()] = Some(0.01);
+    let mut large = small;
+    large[Input::Ssa.index()] = Some(0.05);
+    large[Input::Aod.index()] = Some(0.04);
+    let none: RowSigma = [None; INPUT_COUNT];
+    let natures = [Nature::Random; INPUT_COUNT];
+    let u = propagate_batch_rows(&obs, &base, &s, &ctx, &d, &[small, large, none], &natures);
+    let q = Quantity::DreToa24h as usize;
+    assert!(
+        u[1].random[q] > u[0].random[q],
+        "{} {}",
+        u[1].random[q],
+        u[0].random[q]
+    );
+    assert_eq!(u[1].input_sigma[Input::Ssa.index()], 0.05);
+    // Row σ = job default with the same σ, bit for bit.
+    let mut as_job = d;
+    as_job.set(Input::Ssa, sigma(0.01, Nature::Random));
+    same(&u[0], &propagate(&obs[0], &s, &ctx, &base[0], &as_job));
+    let mut as_job = d;
+    as_job.set(Input::Ssa, sigma(0.05, Nature::Random));
+    as_job.set(Input::Aod, sigma(0.04, Nature::Random));
+    same(&u[1], &propagate(&obs[1], &s, &ctx, &base[1], &as_job));
+    // No row σ: the declared values.
+    same(&u[2], &propagate(&obs[2], &s, &ctx, &base[2], &d));
+}
+
+/// Bit-for-bit equality of two propagations (NaN where an input was not declared equals NaN).
+fn same(
+    a: &hazebook::physics::uncertainty::RowUncertainty,
+    b: &hazebook::physics::uncertainty::RowUncertainty,
+) {
+    assert_eq!(format!("{a:?}"), format!("{b:?}"));
+}

@@ -203,6 +203,10 @@ pub(crate) fn data_layout(
             continue;
         };
         let letter = column_letter(grid.column_number(c));
+        if let Some(why) = super::sigma_headers::unread_reason(grid, header_row, c) {
+            ignored.push(Ignored::new(c, &letter, &text, why));
+            continue;
+        }
         let Some(m) = parse_header(&text) else {
             ignored.push(Ignored::new(
                 c,

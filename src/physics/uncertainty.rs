@@ -444,6 +444,61 @@ pub fn propagate_batch(
         .collect()
 }
 
+/// Per-row 1σ read from a workbook's uncertainty columns, one optional entry per [`Input`]
+/// (indexed like [`Input::ALL`]) [unit of the input; AOD absolute]. `None`: the row has no
+/// value for that input and the declared (job or built-in) value applies.
+pub type RowSigma = [Option<f64>; INPUT_COUNT];
+
+/// The uncertainties that apply to one row: each per-row σ of `row` replaces the declared
+/// entry of its input (absolute σ, no relative part), with the nature `row_nature` gives for
+/// that input (per-row columns are random from day to day unless the job file says otherwise).
+pub fn with_row_sigma(
+    declared: &Declared,
+    row: &RowSigma,
+    row_nature: &[Nature; INPUT_COUNT],
+) -> Declared {
+    let mut d = *declared;
+    for i in Input::ALL {
+        if let Some(s) = row[i.index()] {
+            d.set(
+                i,
+                InputSigma {
+                    absolute: s,
+                    relative: 0.0,
+                    nature: row_nature[i.index()],
+                },
+            );
+        }
+    }
+    d
+}
+
+/// [`propagate_batch`] with per-row σ: row `k` propagates [`with_row_sigma`] of `declared`
+/// and `rows[k]` (`rows` aligned with `obs`).
+pub fn propagate_batch_rows(
+    obs: &[Observation],
+    base: &[ObservationResult],
+    settings: &Settings,
+    ctx: &Context,
+    declared: &Declared,
+    rows: &[RowSigma],
+    row_nature: &[Nature; INPUT_COUNT],
+) -> Vec<RowUncertainty> {
+    obs.par_iter()
+        .zip(base.par_iter())
+        .zip(rows.par_iter())
+        .map(|((o, b), r)| {
+            propagate(
+                o,
+                settings,
+                ctx,
+                b,
+                &with_row_sigma(declared, r, row_nature),
+            )
+        })
+        .collect()
+}
+
 /// Sensitivity of every [`Quantity`] to input `i` by a central difference
 /// (f(x + h) − f(x − h))/(2h) [unit of the quantity per unit input]; for checks of the
 /// one-sided differences of [`propagate`]. `None` when x ± h leaves the input's range.
