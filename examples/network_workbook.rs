@@ -7,7 +7,7 @@
 
 use rust_xlsxwriter::{Format, Workbook};
 
-const SITES: [(&str, f64, f64); 8] = [
+pub const SITES: [(&str, f64, f64); 8] = [
     ("Aldmoor", 52.1, -1.3),
     ("Brinefell", 60.4, 10.2),
     ("Corran Flats", 38.7, -9.1),
@@ -27,6 +27,14 @@ fn main() -> Result<(), Box<dyn std::error::Error>> {
         Some(s) => s.parse()?,
         None => 200_000,
     };
+    let n = write_network(std::path::Path::new(&out), rows)?;
+    println!("{out}: {n} rows at {} sites", SITES.len());
+    Ok(())
+}
+
+/// Writes `rows` invented observations, split evenly over the eight sites, to `path`.
+/// Returns the number of rows written.
+pub fn write_network(path: &std::path::Path, rows: u32) -> Result<u32, rust_xlsxwriter::XlsxError> {
     let mut wb = Workbook::new();
     let date = Format::new().set_num_format("yyyy-mm-dd hh:mm:ss");
     let ws = wb.add_worksheet_with_constant_memory()?;
@@ -72,7 +80,6 @@ fn main() -> Result<(), Box<dyn std::error::Error>> {
             ws.write_number(r, 8, 0.1 + 0.1 * ((i * 0.013).sin() + 1.0) / 2.0)?;
         }
     }
-    wb.save(&out)?;
-    println!("{out}: {r} rows at {} sites", SITES.len());
-    Ok(())
+    wb.save(path)?;
+    Ok(r)
 }
