@@ -78,7 +78,7 @@ hz_size=$(find "$WORK/hazebook-out" -name '*.xlsx' -printf '%s\n' | awk '{s += $
 py_size=$(stat -c %s "$WORK/python-out.xlsx")
 
 echo
-echo "== $ROWS rows ($INPUT)"
+echo "== $ROWS rows ($INPUT); $(nproc) cores, load average now: $(cut -d' ' -f1-3 /proc/loadavg)"
 awk -v hw="$hz_wall" -v hr="$hz_rss" -v hs="$hz_size" \
     -v pw="$py_wall" -v pr="$py_rss" -v ps="$py_size" 'BEGIN {
     printf "%-18s %10s %14s %14s\n", "", "wall [s]", "peak RSS [MB]", "output [MB]"
