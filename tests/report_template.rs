@@ -11,7 +11,7 @@ fn message(e: ReportError) -> String {
 fn builtin_templates_parse_and_are_named() {
     let all = template::builtin();
     let names: Vec<&str> = all.iter().map(|t| t.0).collect();
-    assert_eq!(names, ["full", "brief", "monthly"]);
+    assert_eq!(names, ["full", "brief", "monthly", "fluxes"]);
     for (name, description, _) in all {
         let t = template::load(name).unwrap();
         assert_eq!(t.name, name);

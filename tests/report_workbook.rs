@@ -13,11 +13,20 @@ use report_support::*;
 use statrs::distribution::{ContinuousCDF, StudentsT};
 
 fn write_full(dir: &std::path::Path, n: usize, opts: WriteOptions) -> std::path::PathBuf {
+    write_template(dir, n, opts, "full")
+}
+
+fn write_template(
+    dir: &std::path::Path,
+    n: usize,
+    opts: WriteOptions,
+    name: &str,
+) -> std::path::PathBuf {
     let (ing, res) = sample(n);
     let settings = Settings::default();
     let input = input(&ing, &res, &settings);
     let path = dir.join("report.xlsx");
-    let tpl = template::load("full").unwrap();
+    let tpl = template::load(name).unwrap();
     report::write_report_with(&path, &tpl, &input, &opts).unwrap();
     path
 }
@@ -59,11 +68,14 @@ fn results_headers_units_and_numbers_match_the_given_results() {
     let (ing, res) = sample(n);
     let r = sheet(&path, "Results");
     // The two-stream error and uncertainty columns appear only when the run estimates them
-    // (off here).
+    // (off here); the default template leaves out the broadband fluxes and the spectral SSA
+    // and g text (side output and the `fluxes` template carry them).
     let cols: Vec<_> = frame::columns()
         .iter()
         .filter(|c| c.group != "solver_error" && c.group != "uncertainty")
+        .filter(|c| c.group != "fluxes" && c.key != "ssa_input" && c.key != "asymmetry_input")
         .collect();
+    assert_eq!(r.width(), cols.len(), "no other Results column");
     for (j, c) in cols.iter().enumerate() {
         assert_eq!(text(&r, 0, j), c.header, "header of column {j}");
         assert_eq!(text(&r, 1, j), c.unit, "unit of column {}", c.key);
@@ -78,16 +90,11 @@ fn results_headers_units_and_numbers_match_the_given_results() {
     let c_flags = col_of(&r, "Flags");
     let c_warn = col_of(&r, "Warnings");
     let c_time = col_of(&r, "Time");
-    let c_updown = col_of(&r, "TOA up, with aerosol, 24-h mean");
     for i in 0..n {
         let row = i + 2;
         assert_eq!(text(&r, row, c_site), ing.sites[i]);
         assert_eq!(num(&r, row, c_row), Some(f64::from(ing.origins[i].row)));
         assert!(close6(num(&r, row, c_toa).unwrap(), res[i].daily.dre_toa));
-        assert!(close6(
-            num(&r, row, c_updown).unwrap(),
-            res[i].daily.aerosol.toa_up
-        ));
         let sfc = res[i].instantaneous.dre_sfc;
         match num(&r, row, c_sfc) {
             Some(x) => assert!(close6(x, sfc), "row {i}: {x} vs {sfc}"),
@@ -626,4 +633,44 @@ fn report_gets_the_permissions_of_an_ordinary_new_file() {
     std::fs::write(&plain, "x").unwrap();
     let mode = |p: &std::path::Path| std::fs::metadata(p).unwrap().permissions().mode() & 0o777;
     assert_eq!(mode(&path), mode(&plain));
+}
+
+#[test]
+fn fluxes_template_has_every_column_and_the_broadband_fluxes() {
+    let dir = tempfile::tempdir().unwrap();
+    let n = 20;
+    let path = write_template(dir.path(), n, WriteOptions::default(), "fluxes");
+    let (_, res) = sample(n);
+    let r = sheet(&path, "Results");
+    let cols: Vec<_> = frame::columns()
+        .iter()
+        .filter(|c| c.group != "solver_error" && c.group != "uncertainty")
+        .collect();
+    for (j, c) in cols.iter().enumerate() {
+        assert_eq!(text(&r, 0, j), c.header, "header of column {j}");
+    }
+    let c_up = col_of(&r, "TOA up, with aerosol, 24-h mean");
+    let c_net = col_of(&r, "SFC net, no aerosol");
+    assert_eq!(res.len(), n);
+    for (i, res) in res.iter().enumerate() {
+        assert!(close6(
+            num(&r, i + 2, c_up).unwrap(),
+            res.daily.aerosol.toa_up
+        ));
+        if let Some(x) = num(&r, i + 2, c_net) {
+            assert!(close6(x, res.instantaneous.clean.sfc_net), "row {i}");
+        }
+    }
+}
+
+#[test]
+fn about_says_where_the_broadband_fluxes_are() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = write_full(dir.path(), 5, WriteOptions::default());
+    let a = sheet(&path, "About");
+    let row = (0..a.height())
+        .find(|&i| text(&a, i, 0) == "Broadband fluxes")
+        .expect("a Broadband fluxes row");
+    assert!(text(&a, row, 1).contains("side output"));
+    assert!(text(&a, row, 1).contains("`fluxes` template"));
 }

@@ -509,6 +509,21 @@ pub fn write_about(
              (DRE 0.1 W m⁻², AOD and SSA 0.001); the Parquet/CSV side output carries full double precision."
         ),
     )?;
+    let results_fluxes = t.sheets.iter().any(|s| {
+        s.kind == super::template::SheetKind::Results
+            && super::frame::select_columns(s.columns.as_deref().unwrap_or(&["all".to_string()]))
+                .is_some_and(|cols| cols.iter().any(|c| c.group == "fluxes"))
+    });
+    pair(
+        ws,
+        &mut cur,
+        "Broadband fluxes",
+        if results_fluxes {
+            "In the Results sheet (TOA and surface, up, down and net, with and without aerosol) and, at full precision, in the side output (CSV, Parquet or NetCDF, `side_output` in the job or `--side-output`)."
+        } else {
+            "Not in this workbook's Results sheet (they would make a network-scale report several times larger): the side output (CSV, Parquet or NetCDF, `side_output` in the job or `--side-output`) carries all 28 broadband fluxes at full precision, and the `fluxes` template puts them in a Results sheet."
+        },
+    )?;
     if ing.files.is_empty() {
         pair(ws, &mut cur, "Input files", "none")?;
     } else {

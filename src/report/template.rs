@@ -45,6 +45,11 @@ const BUILTIN: &[(&str, &str, &str)] = &[
         "One month's rerun: About, compact Results, site and daily summaries, efficiency, chart, Rejected",
         include_str!("../../templates/monthly.toml"),
     ),
+    (
+        "fluxes",
+        "About, Results with every column including the broadband fluxes, Rejected",
+        include_str!("../../templates/fluxes.toml"),
+    ),
 ];
 
 /// Name of the default built-in template.

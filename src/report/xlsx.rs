@@ -342,7 +342,7 @@ pub fn write_results(
         .min(2) as u16;
     for (k, chunk) in chunks.iter().enumerate() {
         let name = continued_name(&spec.name, k);
-        let ws = wb.add_worksheet_with_constant_memory()?;
+        let ws = wb.add_worksheet_with_low_memory()?;
         ws.set_name(&name)?;
         for (j, w) in width.iter().enumerate() {
             let w = spec
