@@ -217,8 +217,11 @@ pub fn build_rows<'a>(input: &'a ReportInput<'a>) -> Result<Vec<Row<'a>>, Report
 /// that groups by those keys (summary, efficiency and paper sheets).
 pub struct Groupings<'r, 'a> {
     rows: &'r [Row<'a>],
-    done: std::cell::RefCell<Vec<(Vec<String>, std::sync::Arc<Vec<Group<'a>>>)>>,
+    done: std::cell::RefCell<Vec<KeyedGroups<'a>>>,
 }
+
+/// The keys of a grouping and its groups.
+type KeyedGroups<'a> = (Vec<String>, std::sync::Arc<Vec<Group<'a>>>);
 
 impl<'r, 'a> Groupings<'r, 'a> {
     pub fn new(rows: &'r [Row<'a>]) -> Self {
@@ -458,7 +461,7 @@ fn build_workbook(
             for (spec, these) in template.sheets.iter().zip(&names) {
                 match spec.kind {
                     SheetKind::About => {
-                        about::write_about(&mut wb, template, spec, &styles, input, &flat)
+                        about::write_about(&mut wb, template, spec, styles, input, &flat)
                             .map_err(xerr)?
                     }
                     SheetKind::Results => {
@@ -486,7 +489,7 @@ fn build_workbook(
                             settings,
                         );
                         xlsx::write_summary(
-                            &mut wb, template, spec, &styles, rows, &groups, &keys, &qs,
+                            &mut wb, template, spec, styles, rows, &groups, &keys, &qs,
                         )
                         .map_err(xerr)?;
                         if qs.is_empty() && !qnames.is_empty() {
@@ -519,7 +522,7 @@ fn build_workbook(
                             &mut wb,
                             template,
                             spec,
-                            &styles,
+                            styles,
                             rows,
                             &blocks,
                             settings.daily_mean,
@@ -531,7 +534,7 @@ fn build_workbook(
                             &mut wb,
                             template,
                             spec,
-                            &styles,
+                            styles,
                             rows,
                             &these[1],
                             settings.daily_mean,
@@ -540,7 +543,7 @@ fn build_workbook(
                     }
                     SheetKind::Quotable => {
                         quotable::write_quotable(
-                            &mut wb, template, spec, &styles, input, rows, &grouped,
+                            &mut wb, template, spec, styles, input, rows, &grouped,
                         )?;
                     }
                     SheetKind::Rejected => {
@@ -548,7 +551,7 @@ fn build_workbook(
                             &mut wb,
                             template,
                             spec,
-                            &styles,
+                            styles,
                             &input.ingested.rejected,
                             options.max_rows_per_sheet,
                         )
