@@ -81,15 +81,18 @@ fn build(rows: &[(u32, u32, f64)], unc: Option<(f64, f64)>) -> (Ingested, Vec<Ob
 }
 
 fn rows_of<'a>(ing: &'a Ingested, res: &'a [ObservationResult]) -> Vec<Row<'a>> {
-    (0..res.len())
+    let mut rows: Vec<Row<'a>> = (0..res.len())
         .map(|i| Row {
             origin: &ing.origins[i],
             site: &ing.sites[i],
             obs: &ing.observations[i],
             res: &res[i],
             warnings: &[],
+            day: 0,
         })
-        .collect()
+        .collect();
+    hazebook::report::days::number_days(&mut rows);
+    rows
 }
 
 fn close(a: Option<f64>, b: f64) {

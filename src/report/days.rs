@@ -41,27 +41,86 @@ pub fn solar_date(row: &Row) -> NaiveDate {
     utc.checked_add_signed(shift).unwrap_or(utc).date_naive()
 }
 
+/// Number the site-days of `rows`: each row's [`Row::day`] becomes the rank of its (site,
+/// local mean-solar date) in (site, date) order, so that the statistics gather days without
+/// comparing names and dates again.
+pub fn number_days(rows: &mut [Row]) {
+    let dates: Vec<NaiveDate> = rows.iter().map(solar_date).collect();
+    let mut ranks: BTreeMap<(&str, NaiveDate), u32> = BTreeMap::new();
+    for (r, d) in rows.iter().zip(&dates) {
+        ranks.entry((r.site, *d)).or_insert(0);
+    }
+    for (k, v) in ranks.values_mut().enumerate() {
+        *v = k as u32;
+    }
+    let days: Vec<u32> = rows
+        .iter()
+        .zip(&dates)
+        .map(|(r, d)| ranks[&(r.site, *d)])
+        .collect();
+    for (r, d) in rows.iter_mut().zip(days) {
+        r.day = d;
+    }
+}
+
 /// Values of one quantity gathered by site-day, in (site, date) order, each with the index
-/// of its row.
+/// of its row (rows of a day in the order given).
 #[derive(Debug, Clone, Default)]
 pub struct DayValues<'a> {
-    days: BTreeMap<(&'a str, NaiveDate), Vec<(f64, usize)>>,
+    /// Values of all days, day after day.
+    values: Vec<(f64, usize)>,
+    /// Per day: site, date and the end of its values in `values` (the start is the previous
+    /// day's end).
+    days: Vec<(&'a str, NaiveDate, usize)>,
 }
 
 impl<'a> DayValues<'a> {
-    /// Gather the finite values of `value` over the rows `idx` of `rows`.
+    /// Gather the finite values of `value` over the rows `idx` of `rows` (rows numbered by
+    /// [`number_days`]): a counting sort on the day rank, which keeps the order of `idx`
+    /// within a day.
     pub fn gather(rows: &[Row<'a>], idx: &[usize], value: impl Fn(&Row) -> f64) -> Self {
-        let mut days: BTreeMap<(&'a str, NaiveDate), Vec<(f64, usize)>> = BTreeMap::new();
+        let mut picked: Vec<(u32, f64, usize)> = Vec::with_capacity(idx.len());
+        let (mut lo, mut hi) = (u32::MAX, 0u32);
         for &i in idx {
             let r = &rows[i];
             let x = value(r);
             if x.is_finite() {
-                days.entry((r.site, solar_date(r)))
-                    .or_default()
-                    .push((x, i));
+                picked.push((r.day, x, i));
+                lo = lo.min(r.day);
+                hi = hi.max(r.day);
             }
         }
-        Self { days }
+        if picked.is_empty() {
+            return Self::default();
+        }
+        let span = (hi - lo) as usize + 1;
+        let mut next = vec![0usize; span + 1];
+        for p in &picked {
+            next[(p.0 - lo) as usize + 1] += 1;
+        }
+        for k in 1..=span {
+            next[k] += next[k - 1];
+        }
+        let mut days = Vec::new();
+        for k in 0..span {
+            if next[k + 1] > next[k] {
+                days.push(("", NaiveDate::MIN, next[k + 1]));
+            }
+        }
+        let mut values = vec![(0.0, 0usize); picked.len()];
+        for &(d, x, i) in &picked {
+            let slot = &mut next[(d - lo) as usize];
+            values[*slot] = (x, i);
+            *slot += 1;
+        }
+        let mut start = 0;
+        for day in &mut days {
+            let first = &rows[values[start].1];
+            day.0 = first.site;
+            day.1 = solar_date(first);
+            start = day.2;
+        }
+        Self { values, days }
     }
 
     /// The days with at least `min_obs` values: (site, date, values with row indices).
@@ -69,10 +128,12 @@ impl<'a> DayValues<'a> {
         &self,
         min_obs: usize,
     ) -> impl Iterator<Item = (&str, NaiveDate, &[(f64, usize)])> {
+        let starts = std::iter::once(0).chain(self.days.iter().map(|d| d.2));
         self.days
             .iter()
-            .filter(move |(_, v)| v.len() >= min_obs.max(1))
-            .map(|((s, d), v)| (*s, *d, v.as_slice()))
+            .zip(starts)
+            .map(|(&(s, d, end), start)| (s, d, &self.values[start..end]))
+            .filter(move |(_, _, v)| v.len() >= min_obs.max(1))
     }
 }
 

@@ -59,6 +59,9 @@ pub struct Row<'a> {
     pub obs: &'a Observation,
     pub res: &'a ObservationResult,
     pub warnings: &'a [RowWarning],
+    /// Rank of the row's (site, local mean-solar date) among the site-days of the report, in
+    /// (site, date) order; set by [`super::days::number_days`].
+    pub day: u32,
 }
 
 #[derive(Debug, Clone, Copy)]

@@ -198,7 +198,7 @@ pub fn build_rows<'a>(input: &'a ReportInput<'a>) -> Result<Vec<Row<'a>>, Report
             ),
         });
     }
-    Ok((0..n)
+    let mut rows: Vec<Row<'a>> = (0..n)
         .map(|i| Row {
             origin: &ing.origins[i],
             // The report shows `Full Name (KEY)` where the site table gives a full name.
@@ -206,8 +206,40 @@ pub fn build_rows<'a>(input: &'a ReportInput<'a>) -> Result<Vec<Row<'a>>, Report
             obs: &ing.observations[i],
             res: &input.results[i],
             warnings: ing.row_warnings.get(i).map(Vec::as_slice).unwrap_or(&[]),
+            day: 0,
         })
-        .collect())
+        .collect();
+    days::number_days(&mut rows);
+    Ok(rows)
+}
+
+/// Groups of the result rows for each set of keys, computed once and shared by every sheet
+/// that groups by those keys (summary, efficiency and paper sheets).
+pub struct Groupings<'r, 'a> {
+    rows: &'r [Row<'a>],
+    done: std::cell::RefCell<Vec<KeyedGroups<'a>>>,
+}
+
+/// The keys of a grouping and its groups.
+type KeyedGroups<'a> = (Vec<String>, std::sync::Arc<Vec<Group<'a>>>);
+
+impl<'r, 'a> Groupings<'r, 'a> {
+    pub fn new(rows: &'r [Row<'a>]) -> Self {
+        Self {
+            rows,
+            done: std::cell::RefCell::new(Vec::new()),
+        }
+    }
+
+    /// The groups of [`group_rows`] by `keys`, grouped on first use.
+    pub fn get(&self, keys: &[String]) -> Result<std::sync::Arc<Vec<Group<'a>>>, ReportError> {
+        if let Some((_, g)) = self.done.borrow().iter().find(|(k, _)| k == keys) {
+            return Ok(g.clone());
+        }
+        let g = std::sync::Arc::new(group_rows(self.rows, keys)?);
+        self.done.borrow_mut().push((keys.to_vec(), g.clone()));
+        Ok(g)
+    }
 }
 
 /// Group rows by keys with polars `group_by`, groups sorted by their key values (seasons in
@@ -383,114 +415,165 @@ fn build_workbook(
         options.max_rows_per_sheet,
     );
     let flat: Vec<String> = names.iter().flatten().cloned().collect();
-    for (spec, these) in template.sheets.iter().zip(&names) {
-        match spec.kind {
-            SheetKind::About => {
-                about::write_about(&mut wb, template, spec, &styles, input, &flat).map_err(xerr)?
-            }
-            SheetKind::Results => {
-                let wanted = spec.columns.clone().unwrap_or_else(|| vec!["all".into()]);
-                let cols = frame::select_columns(&wanted).ok_or_else(|| ReportError::Template {
-                    name: template.name.clone(),
-                    message: format!("sheet \"{}\": unknown column", spec.name),
-                })?;
-                let cols = frame::drop_empty_uncertainty(frame::available(cols, settings), rows);
-                xlsx::write_results(
-                    &mut wb,
+    // The Results sheets are written on their own thread while the other sheets are built,
+    // then put in their place in the sheet order. Only they add to the workbook's shared strings
+    // and formats before saving (the other sheets' are collected at save), so the workbook is
+    // the same as when written one sheet after the other.
+    let mut results_jobs = Vec::new();
+    for spec in template
+        .sheets
+        .iter()
+        .filter(|s| s.kind == SheetKind::Results)
+    {
+        let wanted = spec.columns.clone().unwrap_or_else(|| vec!["all".into()]);
+        let cols = frame::select_columns(&wanted).ok_or_else(|| ReportError::Template {
+            name: template.name.clone(),
+            message: format!("sheet \"{}\": unknown column", spec.name),
+        })?;
+        let cols = frame::drop_empty_uncertainty(frame::available(cols, settings), rows);
+        let mut sheets = Vec::new();
+        for _ in 0..xlsx::results_sheet_count(rows.len(), options.max_rows_per_sheet) {
+            sheets.push(wb.new_worksheet_with_low_memory().map_err(xerr)?);
+        }
+        results_jobs.push((spec, cols, sheets));
+    }
+    let grouped = Groupings::new(rows);
+    let mut results_at: Vec<usize> = Vec::new();
+    let styles = &styles;
+    let (built, written) = std::thread::scope(|scope| {
+        let results = scope.spawn(move || {
+            let mut done = Vec::new();
+            for (spec, cols, mut sheets) in results_jobs {
+                xlsx::write_results_into(
+                    &mut sheets,
                     template,
                     spec,
-                    &styles,
+                    styles,
                     &cols,
                     rows,
                     options.max_rows_per_sheet,
-                )
-                .map_err(xerr)?;
+                )?;
+                done.push(sheets);
             }
-            SheetKind::Summary => {
-                let keys = spec.group_by.clone().unwrap_or_default();
-                let groups = group_rows(rows, &keys)?;
-                let default_q = [
-                    "dre_toa_24h",
-                    "dre_sfc_24h",
-                    "dre_atm_24h",
-                    "dre_toa",
-                    "dre_sfc",
-                    "dre_atm",
-                    "aod_550",
-                ];
-                let qnames: Vec<String> = spec
-                    .quantities
-                    .clone()
-                    .unwrap_or_else(|| default_q.iter().map(|s| s.to_string()).collect());
-                let qs: Vec<&frame::ColumnDef> = frame::available(
-                    qnames.iter().filter_map(|q| frame::column(q)).collect(),
-                    settings,
-                );
-                xlsx::write_summary(&mut wb, template, spec, &styles, rows, &groups, &keys, &qs)
-                    .map_err(xerr)?;
-                if qs.is_empty() && !qnames.is_empty() {
-                    // Every quantity named needs a setting that is off (e.g. the two-stream
-                    // error columns): say so instead of leaving the sheet blank.
-                    let ws = wb.worksheet_from_name(&spec.name).map_err(xerr)?;
-                    ws.write_string(
-                        2,
-                        0,
-                        format!(
-                            "Not computed in this run: {} (the two-stream error columns need \
-                             [solver] error_estimate = true; the 24-hour ones need daily means).",
-                            qnames.join(", ")
-                        ),
-                    )
-                    .map_err(xerr)?;
+            Ok::<_, rust_xlsxwriter::XlsxError>(done)
+        });
+        let mut others = || -> Result<(), ReportError> {
+            for (spec, these) in template.sheets.iter().zip(&names) {
+                match spec.kind {
+                    SheetKind::About => {
+                        about::write_about(&mut wb, template, spec, styles, input, &flat)
+                            .map_err(xerr)?
+                    }
+                    SheetKind::Results => {
+                        // Written on their own thread; their place in the sheet order.
+                        results_at.push(wb.worksheets().len());
+                    }
+                    SheetKind::Summary => {
+                        let keys = spec.group_by.clone().unwrap_or_default();
+                        let groups = grouped.get(&keys)?;
+                        let default_q = [
+                            "dre_toa_24h",
+                            "dre_sfc_24h",
+                            "dre_atm_24h",
+                            "dre_toa",
+                            "dre_sfc",
+                            "dre_atm",
+                            "aod_550",
+                        ];
+                        let qnames: Vec<String> = spec
+                            .quantities
+                            .clone()
+                            .unwrap_or_else(|| default_q.iter().map(|s| s.to_string()).collect());
+                        let qs: Vec<&frame::ColumnDef> = frame::available(
+                            qnames.iter().filter_map(|q| frame::column(q)).collect(),
+                            settings,
+                        );
+                        xlsx::write_summary(
+                            &mut wb, template, spec, styles, rows, &groups, &keys, &qs,
+                        )
+                        .map_err(xerr)?;
+                        if qs.is_empty() && !qnames.is_empty() {
+                            // Every quantity named needs a setting that is off (e.g. the two-stream
+                            // error columns): say so instead of leaving the sheet blank.
+                            let ws = wb.worksheet_from_name(&spec.name).map_err(xerr)?;
+                            ws.write_string(
+                                2,
+                                0,
+                                format!(
+                                    "Not computed in this run: {} (the two-stream error columns need \
+                                     [solver] error_estimate = true; the 24-hour ones need daily means).",
+                                    qnames.join(", ")
+                                ),
+                            )
+                            .map_err(xerr)?;
+                        }
+                    }
+                    SheetKind::Efficiency => {
+                        let groupings = spec
+                            .groupings
+                            .clone()
+                            .unwrap_or_else(|| vec![vec!["site".into()]]);
+                        let mut blocks = Vec::new();
+                        for keys in groupings {
+                            let groups = grouped.get(&keys)?;
+                            blocks.push(EfficiencyBlock { keys, groups });
+                        }
+                        xlsx::write_efficiency(
+                            &mut wb,
+                            template,
+                            spec,
+                            styles,
+                            rows,
+                            &blocks,
+                            settings.daily_mean,
+                        )
+                        .map_err(xerr)?;
+                    }
+                    SheetKind::Charts => {
+                        charts::write_charts(
+                            &mut wb,
+                            template,
+                            spec,
+                            styles,
+                            rows,
+                            &these[1],
+                            settings.daily_mean,
+                        )
+                        .map_err(xerr)?;
+                    }
+                    SheetKind::Quotable => {
+                        quotable::write_quotable(
+                            &mut wb, template, spec, styles, input, rows, &grouped,
+                        )?;
+                    }
+                    SheetKind::Rejected => {
+                        xlsx::write_rejected(
+                            &mut wb,
+                            template,
+                            spec,
+                            styles,
+                            &input.ingested.rejected,
+                            options.max_rows_per_sheet,
+                        )
+                        .map_err(xerr)?;
+                    }
                 }
             }
-            SheetKind::Efficiency => {
-                let groupings = spec
-                    .groupings
-                    .clone()
-                    .unwrap_or_else(|| vec![vec!["site".into()]]);
-                let mut blocks = Vec::new();
-                for keys in groupings {
-                    let groups = group_rows(rows, &keys)?;
-                    blocks.push(EfficiencyBlock { keys, groups });
-                }
-                xlsx::write_efficiency(
-                    &mut wb,
-                    template,
-                    spec,
-                    &styles,
-                    rows,
-                    &blocks,
-                    settings.daily_mean,
-                )
-                .map_err(xerr)?;
-            }
-            SheetKind::Charts => {
-                charts::write_charts(
-                    &mut wb,
-                    template,
-                    spec,
-                    &styles,
-                    rows,
-                    &these[1],
-                    settings.daily_mean,
-                )
-                .map_err(xerr)?;
-            }
-            SheetKind::Quotable => {
-                quotable::write_quotable(&mut wb, template, spec, &styles, input, rows)?;
-            }
-            SheetKind::Rejected => {
-                xlsx::write_rejected(
-                    &mut wb,
-                    template,
-                    spec,
-                    &styles,
-                    &input.ingested.rejected,
-                    options.max_rows_per_sheet,
-                )
-                .map_err(xerr)?;
-            }
+            Ok(())
+        };
+        let built = others();
+        let written = match results.join() {
+            Ok(w) => w,
+            Err(panic) => std::panic::resume_unwind(panic),
+        };
+        (built, written)
+    });
+    built?;
+    let mut offset = 0;
+    for (at, sheets) in results_at.into_iter().zip(written.map_err(xerr)?) {
+        for ws in sheets {
+            wb.worksheets_mut().insert(at + offset, ws);
+            offset += 1;
         }
     }
     if let Some(first) = wb.worksheets_mut().first_mut() {

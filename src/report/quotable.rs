@@ -74,13 +74,14 @@ pub fn write_quotable(
     styles: &Styles,
     input: &ReportInput,
     rows: &[Row],
+    groupings: &super::Groupings,
 ) -> Result<(), super::ReportError> {
     let xerr = |e: XlsxError| super::ReportError::Write {
         path: spec.name.clone(),
         reason: e.to_string(),
     };
-    let by_season = super::group_rows(rows, &["site".into(), "season".into()])?;
-    let by_site = super::group_rows(rows, &["site".into()])?;
+    let by_season = groupings.get(&["site".into(), "season".into()])?;
+    let by_site = groupings.get(&["site".into()])?;
     let propagated = rows.iter().any(|r| r.res.uncertainty.is_some());
     let ws = wb.add_worksheet();
     ws.set_name(&spec.name).map_err(xerr)?;
@@ -107,13 +108,8 @@ pub fn write_quotable(
     }
     let mut r = hr + 1;
     let period = |g: &Group| -> String {
-        let mut dates: Vec<String> = g
-            .rows
-            .iter()
-            .map(|&i| super::days::solar_date(&rows[i]).to_string())
-            .collect();
-        dates.sort();
-        match (dates.first(), dates.last()) {
+        let dates = g.rows.iter().map(|&i| super::days::solar_date(&rows[i]));
+        match (dates.clone().min(), dates.max()) {
             (Some(a), Some(b)) => format!("all, {a} to {b}"),
             _ => "all".into(),
         }
@@ -135,7 +131,7 @@ pub fn write_quotable(
         r += 1;
         Ok(())
     };
-    for site_group in &by_site {
+    for site_group in by_site.iter() {
         let site = match site_group.keys.first() {
             Some(frame::Value::Text(s)) => s.to_string(),
             _ => String::new(),

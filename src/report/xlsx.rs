@@ -286,10 +286,40 @@ pub fn continued_name(base: &str, k: usize) -> String {
     format!("{head}{suffix}")
 }
 
+/// Number of Results sheets for `n` rows at `max_rows` rows per sheet (header and units rows
+/// included); one sheet when there are no rows.
+pub fn results_sheet_count(n: usize, max_rows: u32) -> usize {
+    n.div_ceil((max_rows.max(3) - 2) as usize).max(1)
+}
+
 /// The Results sheets: one row per computed observation, continued on further sheets when
 /// longer than `max_rows` (header and units rows included). Returns the sheet names.
 pub fn write_results(
     wb: &mut Workbook,
+    t: &Template,
+    spec: &SheetSpec,
+    styles: &Styles,
+    cols: &[&ColumnDef],
+    rows: &[Row],
+    max_rows: u32,
+) -> Result<Vec<String>, XlsxError> {
+    let mut sheets = Vec::new();
+    for _ in 0..results_sheet_count(rows.len(), max_rows) {
+        sheets.push(wb.new_worksheet_with_low_memory()?);
+    }
+    let names = write_results_into(&mut sheets, t, spec, styles, cols, rows, max_rows)?;
+    for ws in sheets {
+        wb.push_worksheet(ws);
+    }
+    Ok(names)
+}
+
+/// [`write_results`] into worksheets made beforehand with
+/// `Workbook::new_worksheet_with_low_memory`, [`results_sheet_count`] of them, so that they can
+/// be written on their own thread while the other sheets are built (they use the workbook's
+/// shared strings and formats, which no other sheet of the report adds to before saving).
+pub fn write_results_into(
+    sheets: &mut [Worksheet],
     t: &Template,
     spec: &SheetSpec,
     styles: &Styles,
@@ -340,9 +370,13 @@ pub fn write_results(
         .take_while(|c| c.group == "identity")
         .count()
         .min(2) as u16;
-    for (k, chunk) in chunks.iter().enumerate() {
+    assert_eq!(
+        chunks.len(),
+        sheets.len(),
+        "one worksheet per Results chunk"
+    );
+    for ((k, chunk), ws) in chunks.iter().enumerate().zip(sheets.iter_mut()) {
         let name = continued_name(&spec.name, k);
-        let ws = wb.add_worksheet_with_low_memory()?;
         ws.set_name(&name)?;
         for (j, w) in width.iter().enumerate() {
             let w = spec
@@ -620,7 +654,7 @@ pub fn pooled_note(rows: &[Row], idx: &[usize]) -> Option<&'static str> {
 /// One block of regressions of the efficiency sheet: a grouping and its groups.
 pub struct EfficiencyBlock<'a> {
     pub keys: Vec<String>,
-    pub groups: Vec<Group<'a>>,
+    pub groups: std::sync::Arc<Vec<Group<'a>>>,
 }
 
 /// The forcing-efficiency sheet: OLS slope of ΔF against AOD(550) per group.
@@ -668,7 +702,7 @@ pub fn write_efficiency(
     let d_eff = styles.decimals(Class::Efficiency);
     let mut r = 2u32;
     for b in blocks {
-        for g in &b.groups {
+        for g in b.groups.iter() {
             for q in efficiency_quantities(daily_mean) {
                 for (j, k) in all_keys.iter().enumerate() {
                     match b.keys.iter().position(|x| x == k) {
