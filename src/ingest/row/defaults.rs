@@ -182,7 +182,7 @@ pub(crate) fn resolve_atmosphere(
     let (entry, site_rc) = (loc.entry, &loc.site_rc);
     let altitude_m = from_site(
         assumptions,
-        &site_rc,
+        site_rc,
         "altitude_m",
         v.altitude,
         entry.and_then(|e| e.altitude_m),
@@ -197,7 +197,7 @@ pub(crate) fn resolve_atmosphere(
     });
     let pressure_hpa = from_site(
         assumptions,
-        &site_rc,
+        site_rc,
         "pressure_hpa",
         v.pressure,
         entry.and_then(|e| e.pressure_hpa),
