@@ -44,6 +44,7 @@ mod detect;
 mod metadata;
 mod read;
 mod resolve;
+mod row;
 mod sigma_headers;
 mod sites;
 mod sources;
