@@ -102,6 +102,18 @@ pub enum ReportError {
 /// Rows per worksheet that Excel allows (header and units rows included).
 pub const EXCEL_MAX_ROWS: u32 = 1_048_576;
 
+/// Quantities of a summary sheet that names none, and of the summary side file (those the
+/// settings computed).
+const DEFAULT_SUMMARY_QUANTITIES: [&str; 7] = [
+    "dre_toa_24h",
+    "dre_sfc_24h",
+    "dre_atm_24h",
+    "dre_toa",
+    "dre_sfc",
+    "dre_atm",
+    "aod_550",
+];
+
 /// Options of [`write_report_with`].
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub struct WriteOptions {
@@ -471,19 +483,12 @@ fn build_workbook(
                     SheetKind::Summary => {
                         let keys = spec.group_by.clone().unwrap_or_default();
                         let groups = grouped.get(&keys)?;
-                        let default_q = [
-                            "dre_toa_24h",
-                            "dre_sfc_24h",
-                            "dre_atm_24h",
-                            "dre_toa",
-                            "dre_sfc",
-                            "dre_atm",
-                            "aod_550",
-                        ];
-                        let qnames: Vec<String> = spec
-                            .quantities
-                            .clone()
-                            .unwrap_or_else(|| default_q.iter().map(|s| s.to_string()).collect());
+                        let qnames: Vec<String> = spec.quantities.clone().unwrap_or_else(|| {
+                            DEFAULT_SUMMARY_QUANTITIES
+                                .iter()
+                                .map(|s| s.to_string())
+                                .collect()
+                        });
                         let qs: Vec<&frame::ColumnDef> = frame::available(
                             qnames.iter().filter_map(|q| frame::column(q)).collect(),
                             settings,

@@ -892,18 +892,6 @@ pub fn netcdf_results(input: &ReportInput, meta: &SideMeta) -> Result<Vec<u8>, R
     b.finish()
 }
 
-/// Quantities of the summary file (those the settings computed), as on the default
-/// summary sheets.
-const SUMMARY_QUANTITIES: [&str; 7] = [
-    "dre_toa_24h",
-    "dre_sfc_24h",
-    "dre_atm_24h",
-    "dre_toa",
-    "dre_sfc",
-    "dre_atm",
-    "aod_550",
-];
-
 /// CF `cell_methods` of a statistic over the month, where CF has the method.
 fn cell_method(stat: &str) -> Option<&'static str> {
     Some(match stat {
@@ -994,7 +982,7 @@ pub fn netcdf_summary(input: &ReportInput, meta: &SideMeta) -> Result<Vec<u8>, R
         cells[index[i] as usize * n_t + t].push(i);
     }
     let quantities: Vec<&ColumnDef> = frame::available(
-        SUMMARY_QUANTITIES
+        super::DEFAULT_SUMMARY_QUANTITIES
             .iter()
             .filter_map(|q| frame::column(q))
             .collect(),

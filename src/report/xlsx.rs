@@ -293,28 +293,8 @@ pub fn results_sheet_count(n: usize, max_rows: u32) -> usize {
 }
 
 /// The Results sheets: one row per computed observation, continued on further sheets when
-/// longer than `max_rows` (header and units rows included). Returns the sheet names.
-pub fn write_results(
-    wb: &mut Workbook,
-    t: &Template,
-    spec: &SheetSpec,
-    styles: &Styles,
-    cols: &[&ColumnDef],
-    rows: &[Row],
-    max_rows: u32,
-) -> Result<Vec<String>, XlsxError> {
-    let mut sheets = Vec::new();
-    for _ in 0..results_sheet_count(rows.len(), max_rows) {
-        sheets.push(wb.new_worksheet_with_low_memory()?);
-    }
-    let names = write_results_into(&mut sheets, t, spec, styles, cols, rows, max_rows)?;
-    for ws in sheets {
-        wb.push_worksheet(ws);
-    }
-    Ok(names)
-}
-
-/// [`write_results`] into worksheets made beforehand with
+/// longer than `max_rows` (header and units rows included). Returns the sheet names. Written
+/// into worksheets made beforehand with
 /// `Workbook::new_worksheet_with_low_memory`, [`results_sheet_count`] of them, so that they can
 /// be written on their own thread while the other sheets are built (they use the workbook's
 /// shared strings and formats, which no other sheet of the report adds to before saving).
