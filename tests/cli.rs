@@ -542,3 +542,58 @@ fn a_monthly_rerun_rejects_only_rows_it_cannot_place_outside_its_month() {
     );
     assert_counts_reconcile(&doc);
 }
+
+/// `grid --solver discrete-ordinates --streams N --rayleigh-above TAU`: the CSV names the
+/// solver and band set as the command line spells them, records the molecular layer, and the
+/// molecular layer above the aerosol changes the fluxes (it scatters part of the beam).
+#[test]
+fn grid_names_the_accurate_solver_and_the_molecular_layer() {
+    let dir = tempfile::tempdir().unwrap();
+    let grid = |extra: &[&str]| {
+        let mut args = vec![
+            "grid",
+            "--aod",
+            "0.3",
+            "--ssa",
+            "0.9",
+            "--g",
+            "0.7",
+            "--albedo",
+            "0.2",
+            "--mu0",
+            "0.6",
+            "--solver",
+            "discrete-ordinates",
+            "--streams",
+            "6",
+        ];
+        args.extend_from_slice(extra);
+        let o = run(&args, dir.path());
+        assert_eq!(o.status.code(), Some(0), "{}", text(&o.stderr));
+        let out = text(&o.stdout);
+        let mut lines = out.lines();
+        let header: Vec<String> = lines.next().unwrap().split(',').map(String::from).collect();
+        let row: Vec<String> = lines.next().unwrap().split(',').map(String::from).collect();
+        (header, row)
+    };
+    let (header, layered) = grid(&["--rayleigh-above", "0.1"]);
+    let (_, single) = grid(&[]);
+    let col = |name: &str| {
+        header
+            .iter()
+            .position(|h| h == name)
+            .unwrap_or_else(|| panic!("{name}"))
+    };
+    assert_eq!(layered[col("solver")], "discrete-ordinates");
+    assert_eq!(layered[col("streams")], "6");
+    assert_eq!(layered[col("band_set")], "single");
+    assert_eq!(
+        layered[col("rayleigh_above_tau")].parse::<f64>().unwrap(),
+        0.1
+    );
+    let dre = col("dre_toa_wm2");
+    assert_ne!(
+        layered[dre], single[dre],
+        "the molecular layer changes nothing"
+    );
+}
